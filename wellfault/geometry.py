@@ -1,0 +1,709 @@
+"""Pure, vectorised geometry of beds, faults and wells: thickness, separation, fault type.
+
+Every function takes array_like values (broadcast together) and returns numpy arrays; scalars in
+give 0-d results (or plain ``str`` for the classifiers). No pandas, no I/O.
+
+Conventions (DEVELOPERS.md): angles in degrees; vectors (east, north, down); planes as dip
+delta in [0, 90] and dip azimuth beta in [0, 360); well tangent
+t = (sin I sin A, sin I cos A, cos I); bed normal pointing down-section
+n = (-sin d sin b, -sin d cos b, cos d); fault normal pointing up into the hanging wall
+m = (sin th sin bf, sin th cos bf, -cos th). r = t.n > 0 drilling down-section; t.m < 0 crossing
+hanging wall -> footwall. A cut's jump ds = s(below) - s(above) in TST; MISSING section when
+sign(ds) = sign(r), REPEATED when they differ.
+"""
+
+from __future__ import annotations
+
+import re
+from typing import NamedTuple
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from .errors import input_error
+
+__all__ = [
+    "well_tangent",
+    "bed_normal",
+    "fault_normal_up",
+    "stratigraphic_thickness",
+    "stratigraphic_thickness_from_coordinates",
+    "true_vertical_thickness",
+    "stratigraphic_separation",
+    "vertical_separation",
+    "throw_and_heave",
+    "ThrowHeave",
+    "fault_dip_from_throw_and_heave",
+    "apparent_dip",
+    "bed_dip_in_fault_section",
+    "crossing_direction",
+    "section_kind",
+    "classify_fault",
+    "parse_attitude",
+    "expected_md_span",
+    "andersonian_fault_dip",
+    "ANDERSONIAN_DIPS",
+    "DEFAULT_MIN_COS",
+]
+
+#: Default threshold on |t.m| and |r| = |t.n|: the sine of the angle between the well and the
+#: plane (fault or bedding). Below it (well within 2 deg of the plane) the geometry is reported
+#: as degenerate rather than guessed.
+DEFAULT_MIN_COS = float(np.sin(np.radians(2.0)))
+
+#: Andersonian fault dips for a friction angle of about 30 deg (Anderson 1951). [deg]
+ANDERSONIAN_DIPS = {"normal": 60.0, "reverse": 30.0, "thrust": 30.0, "strike-slip": 90.0}
+
+
+def _f(x: ArrayLike) -> NDArray[np.float64]:
+    return np.asarray(x, dtype=float)
+
+
+def _check_dip(dip: NDArray[np.float64], name: str = "dip_deg") -> None:
+    bad = np.asarray(~((dip >= 0) & (dip <= 90)) & ~np.isnan(dip))
+    if bad.any():
+        value = float(np.broadcast_to(dip, bad.shape)[bad].ravel()[0])
+        raise input_error(
+            f"{name} outside 0-90 deg", value=value,
+            fix="give the dip as 0-90 and its direction as a dip azimuth 0-360 "
+            "(an overturned or reversed dip is a different dip azimuth)",
+        )
+
+
+def _unit_vectors(east, north, down) -> NDArray[np.float64]:
+    return np.stack(np.broadcast_arrays(east, north, down), axis=-1)
+
+
+# ----------------------------------------------------------------------------- vectors
+
+
+def well_tangent(inc_deg: ArrayLike, azi_deg: ArrayLike) -> NDArray[np.float64]:
+    """Unit tangent of the borehole, (east, north, down).
+
+    Parameters
+    ----------
+    inc_deg : array_like
+        Inclination from vertical. [deg]
+    azi_deg : array_like
+        Azimuth clockwise from north. [deg]
+
+    Returns
+    -------
+    ndarray, shape (..., 3)
+        t = (sin I sin A, sin I cos A, cos I).
+
+    References
+    ----------
+    .. [1] Sawaryn, S.J. and Thorogood, J.L. (2005) "A Compendium of Directional Calculations
+       Based on the Minimum Curvature Method", SPE Drilling & Completion 20(1), 24-36.
+       doi:10.2118/84246-PA
+    """
+    i, a = np.radians(_f(inc_deg)), np.radians(_f(azi_deg))
+    return _unit_vectors(np.sin(i) * np.sin(a), np.sin(i) * np.cos(a), np.cos(i))
+
+
+def bed_normal(dip_deg: ArrayLike, dip_azimuth_deg: ArrayLike) -> NDArray[np.float64]:
+    """Unit bed normal pointing down-section, (east, north, down).
+
+    Parameters
+    ----------
+    dip_deg : array_like
+        Bed dip, 0-90. [deg]
+    dip_azimuth_deg : array_like
+        Direction of steepest descent. [deg]
+
+    Returns
+    -------
+    ndarray, shape (..., 3)
+        n = (-sin d sin b, -sin d cos b, cos d): toward older rock in upright beds, so the
+        stratigraphic position of a point P is s = n.P + const.
+
+    Raises
+    ------
+    InputError
+        When a dip lies outside 0-90.
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, ch. 7-8
+       (stratigraphic thickness normal to bedding).
+    """
+    d, b = _f(dip_deg), _f(dip_azimuth_deg)
+    _check_dip(d)
+    d, b = np.radians(d), np.radians(b)
+    return _unit_vectors(-np.sin(d) * np.sin(b), -np.sin(d) * np.cos(b), np.cos(d))
+
+
+def fault_normal_up(dip_deg: ArrayLike, dip_azimuth_deg: ArrayLike) -> NDArray[np.float64]:
+    """Unit fault normal pointing upward into the hanging wall, (east, north, down).
+
+    Parameters
+    ----------
+    dip_deg : array_like
+        Fault dip theta, 0-90. [deg]
+    dip_azimuth_deg : array_like
+        Fault dip azimuth. [deg]
+
+    Returns
+    -------
+    ndarray, shape (..., 3)
+        m = (sin th sin b, sin th cos b, -cos th). A well with t.m < 0 goes from the hanging
+        wall into the footwall.
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, ch. 8 (hanging wall
+       and footwall of a dipping fault).
+    """
+    d, b = _f(dip_deg), _f(dip_azimuth_deg)
+    _check_dip(d, "fault_dip_deg")
+    d, b = np.radians(d), np.radians(b)
+    return _unit_vectors(np.sin(d) * np.sin(b), np.sin(d) * np.cos(b), -np.cos(d))
+
+
+# ----------------------------------------------------------------------------- thickness
+
+
+def stratigraphic_thickness(
+    md_interval: ArrayLike,
+    *,
+    inclination_deg: ArrayLike,
+    azimuth_deg: ArrayLike,
+    dip_deg: ArrayLike,
+    dip_azimuth_deg: ArrayLike,
+) -> NDArray[np.float64]:
+    """Signed true stratigraphic thickness (TST) drilled along a straight hole segment.
+
+    Parameters
+    ----------
+    md_interval : array_like
+        Along-hole (MD) length of the segment. [any length unit; returned in the same]
+    inclination_deg, azimuth_deg : array_like
+        Borehole inclination from vertical and azimuth from north. [deg]
+    dip_deg, dip_azimuth_deg : array_like
+        Bed dip (0-90) and dip azimuth. [deg]
+
+    Returns
+    -------
+    ndarray
+        TST = MT (cos I cos d - sin I sin d cos(A - b)) = MT (t.n). Positive when the well
+        cuts down-section (toward older beds), negative up-section (the sign convention of
+        Bateman's calculator note: the well enters the bed from underneath). [length]
+
+    Notes
+    -----
+    Straight segment, constant dip. For curved holes use
+    :func:`stratigraphic_thickness_from_coordinates` on the trajectory's displacement.
+
+    References
+    ----------
+    .. [1] Bateman, R.M. and Konen, C.E. (1979) The Log Analyst (TST/TVT equations), as given in
+       Crain's Petrophysical Handbook, "True vertical and true stratigraphic thickness".
+    .. [2] Berg, C.R. (2012) "Calculating true stratigraphic and true vertical thickness".
+    .. [3] Tearpock, D.J. and Bischke, R.E. (2003) Applied Subsurface Geological Mapping with
+       Structural Methods, 2nd ed., Prentice Hall.
+
+    Examples
+    --------
+    >>> round(float(stratigraphic_thickness(100, inclination_deg=30, azimuth_deg=90,
+    ...                                     dip_deg=20, dip_azimuth_deg=270)), 3)
+    98.481
+    """
+    t = well_tangent(inclination_deg, azimuth_deg)
+    n = bed_normal(dip_deg, dip_azimuth_deg)
+    return _f(md_interval) * np.sum(t * n, axis=-1)
+
+
+def stratigraphic_thickness_from_coordinates(
+    d_east: ArrayLike,
+    d_north: ArrayLike,
+    d_tvd: ArrayLike,
+    *,
+    dip_deg: ArrayLike,
+    dip_azimuth_deg: ArrayLike,
+) -> NDArray[np.float64]:
+    """Signed TST between two points of a (possibly curved) well, from their displacement.
+
+    Parameters
+    ----------
+    d_east, d_north, d_tvd : array_like
+        Displacement from the upper to the lower point (TVD positive down). [length]
+    dip_deg, dip_azimuth_deg : array_like
+        Bed dip (0-90) and dip azimuth. [deg]
+
+    Returns
+    -------
+    ndarray
+        TST = n.dP = dTVD cos d - (dN cos b + dE sin b) sin d; positive down-section. [length]
+
+    References
+    ----------
+    .. [1] Berg, C.R. (2012) "Calculating true stratigraphic and true vertical thickness"
+       (coordinate form recommended for curved holes).
+    .. [2] Boak, J.M., "Depth and thickness conversion", AAPG Wiki (Development Geology Reference
+       Manual, AAPG Methods in Exploration).
+    """
+    n = bed_normal(dip_deg, dip_azimuth_deg)
+    return n[..., 0] * _f(d_east) + n[..., 1] * _f(d_north) + n[..., 2] * _f(d_tvd)
+
+
+def true_vertical_thickness(tst: ArrayLike, *, dip_deg: ArrayLike) -> NDArray[np.float64]:
+    """True vertical thickness from TST: TVT = TST / cos d (sign kept).
+
+    Parameters
+    ----------
+    tst : array_like
+        True stratigraphic thickness. [length]
+    dip_deg : array_like
+        Bed dip, 0-90. [deg]
+
+    Returns
+    -------
+    ndarray
+        TVT, the thickness a vertical well would log at a fixed (x, y); +-inf for vertical
+        beds. [length]
+
+    References
+    ----------
+    .. [1] Bateman, R.M. and Konen, C.E. (1979) The Log Analyst, via Crain's Petrophysical
+       Handbook (TVT = TST / cos dip).
+    .. [2] Boak, J.M., "Depth and thickness conversion", AAPG Wiki.
+    """
+    d = _f(dip_deg)
+    _check_dip(d)
+    return _safe_div(_f(tst), np.cos(np.radians(d)), d == 90)
+
+
+def _safe_div(num, den, zero):
+    with np.errstate(divide="ignore", invalid="ignore"):
+        out = num / np.where(zero, 0.0, den)
+    return out
+
+
+def stratigraphic_separation(vertical_separation: ArrayLike, *, dip_deg: ArrayLike):
+    """Stratigraphic separation SS = VS cos d (Groshong 2006, eq. 7.3).
+
+    Parameters
+    ----------
+    vertical_separation : array_like
+        Vertical separation. [length]
+    dip_deg : array_like
+        Cross-fault bed dip, 0-90. [deg]
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, eq. 7.3.
+
+    Examples
+    --------
+    >>> round(float(stratigraphic_separation(100, dip_deg=10)), 3)
+    98.481
+    """
+    d = _f(dip_deg)
+    _check_dip(d)
+    return _f(vertical_separation) * np.cos(np.radians(d))
+
+
+# ----------------------------------------------------------------------------- separation
+
+
+def vertical_separation(delta_s: ArrayLike, *, dip_deg: ArrayLike) -> NDArray[np.float64]:
+    """Vertical separation from a stratigraphic jump: VS = |ds| / cos d.
+
+    Parameters
+    ----------
+    delta_s : array_like
+        Stratigraphic jump (missing or repeated TST) at the cut. [length]
+    dip_deg : array_like
+        Bed dip across the fault, 0-90. [deg]
+
+    Returns
+    -------
+    ndarray
+        VS, positive; independent of the well path for planar beds. [length]
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, eq. 7.3
+       (VS = t / cos d).
+    .. [2] Tearpock, D.J. and Bischke, R.E. (2003) Applied Subsurface Geological Mapping with
+       Structural Methods, 2nd ed., Prentice Hall (VS is what the log records).
+    """
+    d = _f(dip_deg)
+    _check_dip(d)
+    return _safe_div(np.abs(_f(delta_s)), np.cos(np.radians(d)), d == 90)
+
+
+class ThrowHeave(NamedTuple):
+    """Result of :func:`throw_and_heave`. [length]"""
+
+    throw: NDArray[np.float64]
+    """Vertical component of the dip separation."""
+    heave: NDArray[np.float64]
+    """Horizontal component, in the fault-dip direction."""
+    dip_separation: NDArray[np.float64]
+    """Separation measured in the fault plane, in the dip direction."""
+
+
+def throw_and_heave(
+    vertical_separation: ArrayLike,
+    *,
+    fault_dip_deg: ArrayLike,
+    apparent_bed_dip_deg: ArrayLike,
+) -> ThrowHeave:
+    """Throw, heave and dip separation from vertical separation, in the section normal to strike.
+
+    Parameters
+    ----------
+    vertical_separation : array_like
+        Vertical separation VS. [length]
+    fault_dip_deg : array_like
+        Fault dip theta, 0-90. [deg]
+    apparent_bed_dip_deg : array_like
+        Apparent bed dip alpha in the fault-dip direction, positive when the beds dip the way
+        the fault dips, negative when they dip against it (see :func:`bed_dip_in_fault_section`).
+        [deg]
+
+    Returns
+    -------
+    ThrowHeave
+        ``(throw, heave, dip_separation)``:
+        T = VS tan th / (tan th - tan a) = VS sin th cos a / sin(th - a),
+        H = VS / (tan th - tan a) = VS cos th cos a / sin(th - a),
+        DS = VS cos a / sin(th - a). [length]
+
+    Notes
+    -----
+    Horizontal beds give T = VS; beds dipping with the fault give T > VS, against it T < VS.
+    When the beds dip the same way as the fault but more steeply (a > th) the values are
+    negative: the separation sense is opposite to the slip sense. a = th (beds parallel to the
+    fault) gives infinities.
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, eqs. 8.1-8.2
+       (t = H cos r / cos f = T cos r / sin f), which these forms restate.
+    .. [2] Tearpock, D.J. and Bischke, R.E. (1990) "Mapping throw in place of vertical
+       separation: a costly subsurface mapping misconception", Oil & Gas Journal.
+
+    Examples
+    --------
+    >>> [round(float(v), 3) for v in throw_and_heave(100, fault_dip_deg=60,
+    ...                                               apparent_bed_dip_deg=10)]
+    [111.334, 64.279, 128.558]
+    """
+    th = _f(fault_dip_deg)
+    _check_dip(th, "fault_dip_deg")
+    th = np.radians(th)
+    a = np.radians(_f(apparent_bed_dip_deg))
+    vs = _f(vertical_separation)
+    s = np.sin(th - a)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ds = vs * np.cos(a) / s
+    return ThrowHeave(ds * np.sin(th), ds * np.cos(th), ds)
+
+
+def fault_dip_from_throw_and_heave(throw: ArrayLike, heave: ArrayLike) -> NDArray[np.float64]:
+    """Fault dip from throw and heave: phi = atan(T / H) [deg] (Groshong 2006, eq. 8.3).
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, eq. 8.3.
+
+    Examples
+    --------
+    >>> round(float(fault_dip_from_throw_and_heave(32, 25.6)), 2)
+    51.34
+    """
+    return np.degrees(np.arctan2(np.abs(_f(throw)), np.abs(_f(heave))))
+
+
+def apparent_dip(
+    dip_deg: ArrayLike, dip_azimuth_deg: ArrayLike, section_azimuth_deg: ArrayLike
+) -> NDArray[np.float64]:
+    """Apparent dip of a plane in a vertical section, signed.
+
+    Parameters
+    ----------
+    dip_deg, dip_azimuth_deg : array_like
+        True dip (0-90) and dip azimuth of the plane. [deg]
+    section_azimuth_deg : array_like
+        Azimuth of the section line, the direction in which the apparent dip is measured. [deg]
+
+    Returns
+    -------
+    ndarray
+        atan(tan d cos(e - b)) [deg]: positive when the plane descends toward
+        ``section_azimuth_deg``, negative when it rises.
+
+    References
+    ----------
+    .. [1] Boak, J.M., "Depth and thickness conversion", AAPG Wiki (d' = atan(tan d cos(b - e))).
+    .. [2] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer (apparent dip).
+
+    Examples
+    --------
+    >>> round(float(apparent_dip(20, 270, 90)), 6)
+    -20.0
+    """
+    d = _f(dip_deg)
+    _check_dip(d)
+    c = np.cos(np.radians(_f(section_azimuth_deg) - _f(dip_azimuth_deg)))
+    # atan2 keeps vertical planes finite: sign(c) * 90
+    return np.degrees(np.arctan2(np.sin(np.radians(d)) * c, np.cos(np.radians(d))))
+
+
+def bed_dip_in_fault_section(
+    bed_dip_deg: ArrayLike, bed_dip_azimuth_deg: ArrayLike, *, fault_dip_azimuth_deg: ArrayLike
+) -> NDArray[np.float64]:
+    """Apparent bed dip in the fault's dip direction (the section normal to fault strike).
+
+    Positive when the beds dip the same way as the fault, negative when they dip against it:
+    the ``apparent_bed_dip_deg`` that :func:`throw_and_heave` takes. [deg]
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, ch. 8 (cross-fault
+       bed dip in the section normal to the fault).
+    """
+    return apparent_dip(bed_dip_deg, bed_dip_azimuth_deg, fault_dip_azimuth_deg)
+
+
+# ----------------------------------------------------------------------------- classification
+
+
+def crossing_direction(
+    tangent: ArrayLike,
+    *,
+    fault_dip_deg: ArrayLike,
+    fault_dip_azimuth_deg: ArrayLike,
+    min_cos: float = DEFAULT_MIN_COS,
+) -> NDArray[np.int64]:
+    """Which way a well crosses a fault: +1 hanging wall -> footwall, -1 the other way, 0 unclear.
+
+    Parameters
+    ----------
+    tangent : array_like, shape (..., 3)
+        Unit well tangent (east, north, down) at the crossing (``Trajectory.tangent``).
+    fault_dip_deg, fault_dip_azimuth_deg : array_like
+        Fault dip (0-90) and dip azimuth. [deg]
+    min_cos : float
+        Threshold on |t.m|, the sine of the angle between the well and the fault plane; below
+        it the well runs (nearly) in the fault plane and 0 is returned. Default sin 2 deg.
+
+    Returns
+    -------
+    ndarray of int
+        +1 where t.m < -min_cos (hanging wall -> footwall), -1 where t.m > min_cos (footwall ->
+        hanging wall), 0 otherwise.
+
+    Notes
+    -----
+    A well drilled toward the fault's dip direction crosses footwall -> hanging wall when it is
+    flatter than the fault, tan I cos(A - b_f) > cot th, i.e. I > 90 - th straight down-dip
+    (methods.md section 3.4, derived from the vector form).
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, ch. 7-8 (hanging
+       wall and footwall; fault cuts).
+    """
+    t = _f(tangent)
+    m = fault_normal_up(fault_dip_deg, fault_dip_azimuth_deg)
+    c = np.sum(t * m, axis=-1)
+    return np.where(c < -min_cos, 1, np.where(c > min_cos, -1, 0)).astype(np.int64)
+
+
+def _text_out(arr: NDArray, scalar: bool):
+    return str(arr.reshape(())) if scalar else arr
+
+
+def section_kind(
+    delta_s: ArrayLike, r: ArrayLike, *, min_r: float = DEFAULT_MIN_COS
+) -> NDArray[np.str_] | str:
+    """Observed section change at a cut: "missing", "repeated" or "undetermined".
+
+    Parameters
+    ----------
+    delta_s : array_like
+        Stratigraphic jump ds = s(below the cut) - s(above). [length]
+    r : array_like
+        r = t.n, positive when the well drills down-section.
+    min_r : float
+        Below this |r| the well runs (nearly) parallel to bedding and the jump has no
+        missing/repeated meaning. Default sin 2 deg.
+
+    Returns
+    -------
+    ndarray of str, or str for scalar inputs
+        "missing" where sign(ds) = sign(r), "repeated" where they differ, "undetermined" where
+        |r| < min_r or ds = 0 (no jump).
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, ch. 7 (missing and
+       repeated section at fault cuts; Tearpock & Bischke's definition of a fault cut).
+    """
+    ds, rr = np.broadcast_arrays(_f(delta_s), _f(r))
+    scalar = ds.ndim == 0
+    prod = np.sign(ds) * np.sign(rr)
+    out = np.where(prod > 0, "missing", "repeated").astype("<U12")
+    out[np.asarray((np.abs(rr) < min_r) | (ds == 0) | np.isnan(prod))] = "undetermined"
+    return _text_out(out, scalar)
+
+
+def classify_fault(
+    delta_s: ArrayLike,
+    *,
+    r: ArrayLike,
+    crossing: ArrayLike,
+    min_r: float = DEFAULT_MIN_COS,
+) -> tuple[NDArray[np.str_] | str, NDArray[np.str_] | str]:
+    """Fault type from the separation sense: "normal", "reverse" or "undetermined", with reason.
+
+    Parameters
+    ----------
+    delta_s : array_like
+        Stratigraphic jump ds = s(below) - s(above). [length]
+    r : array_like
+        r = t.n at the cut (drilling direction through the beds).
+    crossing : array_like of int
+        From :func:`crossing_direction`: +1 hanging wall -> footwall, -1 footwall -> hanging
+        wall, 0 degenerate.
+    min_r : float
+        |r| threshold below which the well is treated as parallel to bedding.
+
+    Returns
+    -------
+    fault_type, reason : ndarray of str (or str for scalar inputs)
+        Separation sense = sign(crossing * ds): > 0 normal (going hanging wall -> footwall the
+        well jumps down-section to older rock: hanging wall younger on older), < 0 reverse.
+        "undetermined" when the crossing is 0 (well nearly parallel to the fault), |r| < min_r
+        (well nearly parallel to bedding) or ds = 0; the reason says which ("" otherwise).
+
+    Notes
+    -----
+    Truth table (methods.md section 3.4): normal HW->FW down-section = missing, up-section =
+    repeated; normal FW->HW down-section = repeated; reverse the opposite. "Normal/reverse"
+    means separation: beds dipping with the fault more steeply than it turn normal slip into
+    reverse separation.
+
+    References
+    ----------
+    .. [1] Groshong, R.H. (2006) 3-D Structural Geology, 2nd ed., Springer, ch. 7-8.
+    .. [2] Tearpock, D.J. and Bischke, R.E. (2003) Applied Subsurface Geological Mapping with
+       Structural Methods, 2nd ed., Prentice Hall (normal fault: missing section; reverse:
+       repeated, in the usual hanging wall -> footwall crossing).
+    """
+    ds, rr, cr = np.broadcast_arrays(_f(delta_s), _f(r), _f(crossing))
+    scalar = ds.ndim == 0
+    sense = np.sign(cr) * np.sign(ds)
+    ftype = np.where(sense > 0, "normal", "reverse").astype("<U12")
+    reason = np.full(ds.shape, "", dtype="<U80")
+    rules = [  # later rules win, so list the most basic last
+        (np.abs(rr) < min_r, "well nearly parallel to bedding (|t.n| small)"),
+        (cr == 0, "well nearly parallel to the fault plane (|t.m| small)"),
+        (np.isnan(ds) | np.isnan(rr) | np.isnan(cr), "missing input (NaN)"),
+        (ds == 0, "no stratigraphic jump (delta_s = 0)"),
+    ]
+    for mask, why in rules:
+        mask = np.asarray(mask)
+        ftype[mask] = "undetermined"
+        reason[mask] = why
+    return _text_out(ftype, scalar), _text_out(reason, scalar)
+
+
+def expected_md_span(tst: ArrayLike, r: ArrayLike) -> NDArray[np.float64]:
+    """MD interval the missing (or repeated) strata occupy in the well: |TST| / |r|.
+
+    Parameters
+    ----------
+    tst : array_like
+        Missing or repeated true stratigraphic thickness. [length]
+    r : array_like
+        r = t.n of the well. inf where r = 0.
+
+    References
+    ----------
+    .. [1] Bateman, R.M. and Konen, C.E. (1979) The Log Analyst, via Crain's Petrophysical
+       Handbook (TST = MT (t.n), inverted).
+    """
+    return _safe_div(np.abs(_f(tst)), np.abs(_f(r)), _f(r) == 0)
+
+
+# ----------------------------------------------------------------------------- text and defaults
+
+_ATTITUDE = re.compile(r"^\s*([+-]?\d+(?:\.\d*)?|[+-]?\.\d+)\s*/\s*([+-]?\d+(?:\.\d*)?|[+-]?\.\d+)\s*$")
+
+
+def parse_attitude(text: str, *, source: object = None) -> tuple[float, float]:
+    """Parse a plane written ``dip/dip-azimuth`` (e.g. ``"12/075"``).
+
+    Parameters
+    ----------
+    text : str
+        Dip 0-90 and dip azimuth 0-360 separated by ``/``.
+    source : object, optional
+        Where the text came from (option name, file and row), for messages.
+
+    Returns
+    -------
+    dip_deg, dip_azimuth_deg : float
+        Dip azimuth normalised to [0, 360). [deg]
+
+    Raises
+    ------
+    InputError
+        For text not of that form, a dip outside 0-90 or an azimuth outside 0-360; the message
+        shows the expected form.
+
+    Examples
+    --------
+    >>> parse_attitude("12/075")
+    (12.0, 75.0)
+    """
+    form = "expected dip/dip-azimuth in degrees, e.g. 12/075 (dip 0-90, azimuth 0-360)"
+    m = _ATTITUDE.match(str(text))
+    if not m:
+        raise input_error("cannot read the plane attitude", source=source, value=str(text),
+                          fix=form)
+    dip, azi = float(m.group(1)), float(m.group(2))
+    if not 0.0 <= dip <= 90.0:
+        raise input_error("dip outside 0-90 deg", source=source, value=str(text),
+                          fix=form + "; an overturned dip is the opposite dip azimuth")
+    if not 0.0 <= azi <= 360.0:
+        raise input_error("dip azimuth outside 0-360 deg", source=source, value=str(text),
+                          fix=form)
+    return dip, azi % 360.0
+
+
+def andersonian_fault_dip(kind: str) -> float:
+    """Default fault dip from Anderson's theory of faulting. [deg]
+
+    Parameters
+    ----------
+    kind : str
+        One of ``"normal"`` (60), ``"reverse"`` / ``"thrust"`` (30), ``"strike-slip"`` (90).
+
+    Notes
+    -----
+    For an angle of internal friction of about 30 deg (methods.md section 7). Used when a
+    fault's dip is not given; results say the dip was assumed.
+
+    References
+    ----------
+    .. [1] Anderson, E.M. (1951) The Dynamics of Faulting and Dyke Formation with Applications
+       to Britain, 2nd ed. Oliver & Boyd, Edinburgh.
+
+    Raises
+    ------
+    InputError
+        For an unknown kind; the message lists the valid ones.
+    """
+    key = str(kind).strip().lower()
+    try:
+        return ANDERSONIAN_DIPS[key]
+    except KeyError:
+        raise input_error("unknown fault kind", value=str(kind),
+                          fix=f"use one of {', '.join(ANDERSONIAN_DIPS)}") from None
+
