@@ -234,7 +234,7 @@ def test_well_flatter_than_the_fault_toward_its_dip_crosses_footwall_to_hanging_
                                                                                       expected):
     # derived (methods.md section 3.4): threshold I > 90 - theta toward the dip direction
     t = well_tangent(inc, 90)
-    got = crossing_direction(t, fault_dip_deg=60, fault_dip_azimuth_deg=90, min_cos=0.01)
+    got = crossing_direction(t, fault_dip_deg=60, fault_dip_azimuth_deg=90, min_abs_cos=0.01)
     assert got == expected
 
 
@@ -252,7 +252,7 @@ def test_crossing_threshold_for_wells_drilled_toward_the_fault_dip(theta, inc):
     # derived (methods.md section 3.4): FW -> HW iff tan I cos(A - phi) > cot theta
     assume(abs(inc - (90 - theta)) > 0.1)
     got = crossing_direction(well_tangent(inc, 200), fault_dip_deg=theta,
-                             fault_dip_azimuth_deg=200, min_cos=1e-6)
+                             fault_dip_azimuth_deg=200, min_abs_cos=1e-6)
     assert got == (-1 if inc > 90 - theta else 1)
 
 
@@ -264,7 +264,7 @@ def _case(kind, theta, fault_azi, bed_dip, bed_azi, inc, azi, throw=100.0):
     n = bed_normal(bed_dip, bed_azi)
     u = _slip(theta, fault_azi, throw, kind)
     c = int(crossing_direction(t, fault_dip_deg=theta, fault_dip_azimuth_deg=fault_azi,
-                               min_cos=0.01))
+                               min_abs_cos=0.01))
     ds = c * float(n @ u)  # DESIGN.md section 3: ds = c (n.u)
     r = float(t @ n)
     return ds, r, c

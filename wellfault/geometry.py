@@ -477,7 +477,7 @@ def crossing_direction(
     *,
     fault_dip_deg: ArrayLike,
     fault_dip_azimuth_deg: ArrayLike,
-    min_cos: float = DEFAULT_MIN_COS,
+    min_abs_cos: float = DEFAULT_MIN_COS,
 ) -> NDArray[np.int64]:
     """Which way a well crosses a fault: +1 hanging wall -> footwall, -1 the other way, 0 unclear.
 
@@ -487,15 +487,15 @@ def crossing_direction(
         Unit well tangent (east, north, down) at the crossing (``Trajectory.tangent``).
     fault_dip_deg, fault_dip_azimuth_deg : array_like
         Fault dip (0-90) and dip azimuth. [deg]
-    min_cos : float
+    min_abs_cos : float
         Threshold on |t.m|, the sine of the angle between the well and the fault plane; below
         it the well runs (nearly) in the fault plane and 0 is returned. Default sin 2 deg.
 
     Returns
     -------
     ndarray of int
-        +1 where t.m < -min_cos (hanging wall -> footwall), -1 where t.m > min_cos (footwall ->
-        hanging wall), 0 otherwise.
+        +1 where t.m < -min_abs_cos (hanging wall -> footwall), -1 where t.m > min_abs_cos
+        (footwall -> hanging wall), 0 otherwise.
 
     Notes
     -----
@@ -511,7 +511,7 @@ def crossing_direction(
     t = _f(tangent)
     m = fault_normal_up(fault_dip_deg, fault_dip_azimuth_deg)
     c = np.sum(t * m, axis=-1)
-    return np.where(c < -min_cos, 1, np.where(c > min_cos, -1, 0)).astype(np.int64)
+    return np.where(c < -min_abs_cos, 1, np.where(c > min_abs_cos, -1, 0)).astype(np.int64)
 
 
 def _text_out(arr: NDArray, scalar: bool):
@@ -519,7 +519,7 @@ def _text_out(arr: NDArray, scalar: bool):
 
 
 def section_kind(
-    delta_s: ArrayLike, r: ArrayLike, *, min_r: float = DEFAULT_MIN_COS
+    delta_s: ArrayLike, r: ArrayLike, *, min_abs_r: float = DEFAULT_MIN_COS
 ) -> NDArray[np.str_] | str:
     """Observed section change at a cut: "missing", "repeated" or "undetermined".
 
@@ -529,7 +529,7 @@ def section_kind(
         Stratigraphic jump ds = s(below the cut) - s(above). [length]
     r : array_like
         r = t.n, positive when the well drills down-section.
-    min_r : float
+    min_abs_r : float
         Below this |r| the well runs (nearly) parallel to bedding and the jump has no
         missing/repeated meaning. Default sin 2 deg.
 
@@ -537,7 +537,7 @@ def section_kind(
     -------
     ndarray of str, or str for scalar inputs
         "missing" where sign(ds) = sign(r), "repeated" where they differ, "undetermined" where
-        |r| < min_r or ds = 0 (no jump).
+        |r| < min_abs_r or ds = 0 (no jump).
 
     References
     ----------
@@ -548,7 +548,7 @@ def section_kind(
     scalar = ds.ndim == 0
     prod = np.sign(ds) * np.sign(rr)
     out = np.where(prod > 0, "missing", "repeated").astype("<U12")
-    out[np.asarray((np.abs(rr) < min_r) | (ds == 0) | np.isnan(prod))] = "undetermined"
+    out[np.asarray((np.abs(rr) < min_abs_r) | (ds == 0) | np.isnan(prod))] = "undetermined"
     return _text_out(out, scalar)
 
 
@@ -557,7 +557,7 @@ def classify_fault(
     *,
     r: ArrayLike,
     crossing: ArrayLike,
-    min_r: float = DEFAULT_MIN_COS,
+    min_abs_r: float = DEFAULT_MIN_COS,
 ) -> tuple[NDArray[np.str_] | str, NDArray[np.str_] | str]:
     """Fault type from the separation sense: "normal", "reverse" or "undetermined", with reason.
 
@@ -570,7 +570,7 @@ def classify_fault(
     crossing : array_like of int
         From :func:`crossing_direction`: +1 hanging wall -> footwall, -1 footwall -> hanging
         wall, 0 degenerate.
-    min_r : float
+    min_abs_r : float
         |r| threshold below which the well is treated as parallel to bedding.
 
     Returns
@@ -578,8 +578,9 @@ def classify_fault(
     fault_type, reason : ndarray of str (or str for scalar inputs)
         Separation sense = sign(crossing * ds): > 0 normal (going hanging wall -> footwall the
         well jumps down-section to older rock: hanging wall younger on older), < 0 reverse.
-        "undetermined" when the crossing is 0 (well nearly parallel to the fault), |r| < min_r
-        (well nearly parallel to bedding) or ds = 0; the reason says which ("" otherwise).
+        "undetermined" when the crossing is 0 (well nearly parallel to the fault),
+        |r| < min_abs_r (well nearly parallel to bedding) or ds = 0; the reason says which
+        ("" otherwise).
 
     Notes
     -----
@@ -601,7 +602,7 @@ def classify_fault(
     ftype = np.where(sense > 0, "normal", "reverse").astype("<U12")
     reason = np.full(ds.shape, "", dtype="<U80")
     rules = [  # later rules win, so list the most basic last
-        (np.abs(rr) < min_r, "well nearly parallel to bedding (|t.n| small)"),
+        (np.abs(rr) < min_abs_r, "well nearly parallel to bedding (|t.n| small)"),
         (cr == 0, "well nearly parallel to the fault plane (|t.m| small)"),
         (np.isnan(ds) | np.isnan(rr) | np.isnan(cr), "missing input (NaN)"),
         (ds == 0, "no stratigraphic jump (delta_s = 0)"),
@@ -633,7 +634,8 @@ def expected_md_span(tst: ArrayLike, r: ArrayLike) -> NDArray[np.float64]:
 
 # ----------------------------------------------------------------------------- text and defaults
 
-_ATTITUDE = re.compile(r"^\s*([+-]?\d+(?:\.\d*)?|[+-]?\.\d+)\s*/\s*([+-]?\d+(?:\.\d*)?|[+-]?\.\d+)\s*$")
+_NUM = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)"
+_ATTITUDE = re.compile(rf"^\s*({_NUM})\s*/\s*({_NUM})\s*$")
 
 
 def parse_attitude(text: str, *, source: object = None) -> tuple[float, float]:

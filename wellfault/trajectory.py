@@ -406,8 +406,10 @@ class Trajectory:
         out[1:] = self._dl_deg[1:] * per_m / self._dmd
         return out
 
-    def survey_out(self, unit: DepthUnit | str = DepthUnit.M) -> pd.DataFrame:
+    def survey_table(self, unit: DepthUnit | str = DepthUnit.M) -> pd.DataFrame:
         """The station table in ``unit``, for output (the ``wellfault survey`` command).
+
+        ``survey_out`` is the same method under another name.
 
         Parameters
         ----------
@@ -442,6 +444,8 @@ class Trajectory:
         else:
             cols["dls_deg_per_100ft"] = self._dls(100.0 * u.metres)
         return pd.DataFrame(cols)
+
+    survey_out = survey_table
 
     def __repr__(self) -> str:
         label = f" {self.name!r}" if self.name else ""
