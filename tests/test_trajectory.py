@@ -350,6 +350,7 @@ def test_survey_out_columns_carry_units():
     assert list(m.columns) == ["md_m", "inc_deg", "azi_deg", "tvd_m", "tvdss_m", "north_m",
                                "east_m", "x_m", "y_m", "dls_deg_per_30m"]
     ft = traj.survey_out("ft")
+    assert Trajectory.survey_table is Trajectory.survey_out  # one method, two names
     assert ft["md_ft"].to_numpy() == pytest.approx(m["md_m"].to_numpy() / 0.3048)
     assert ft["x_ft"].iloc[0] == pytest.approx(100.0 / 0.3048)
 
