@@ -1,0 +1,181 @@
+"""Measure one fault cut: position, observed section, fault type, thicknesses and separations.
+
+Whatever found the cut (tops or curves), the evidence reduces to a signed stratigraphic jump Δs
+at an MD inside a bracket. :func:`measure_cut` turns that into a :class:`~wellfault.results.FaultCut`
+with the geometry of DESIGN.md §3: section from the sign rule, fault type from the crossing
+direction (given fault attitude) or from the stated hanging wall → footwall assumption, TST, TVT,
+vertical separation, throw and heave, the MD span of the missing or repeated strata, and with a
+pitch, net slip.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from . import geometry, slip
+from .dip import BedDip
+from .errors import InputError
+from .results import FaultCut
+
+__all__ = ["FaultAssumptions", "measure_cut", "MIN_BED_COSINE", "MIN_FAULT_COSINE"]
+
+#: |t·n| below this: the well runs (nearly) parallel to bedding, so "missing" or "repeated"
+#: has no meaning (methods.md §3.4, degenerate cases). About 3° from bedding; common practice.
+MIN_BED_COSINE = 0.05
+#: |t·m| below this: the well runs (nearly) parallel to the fault plane (about 3°).
+MIN_FAULT_COSINE = 0.05
+
+
+@dataclass(frozen=True)
+class FaultAssumptions:
+    """What the user told us about the fault(s), shared by all cuts of a run.
+
+    ``fault`` is a (dip, dip azimuth) pair when the attitude is known (``--fault 60/090``);
+    ``pitch`` is (pitch, azimuth of the strike-line end it is measured from), e.g. (50, 200)
+    for ``--pitch 50/200``; it needs ``fault``.
+    """
+
+    fault: tuple[float, float] | None = None
+    pitch: tuple[float, float] | None = None
+
+    def __post_init__(self):
+        if self.pitch is not None and self.fault is None:
+            raise InputError("a slickenline pitch needs the fault attitude to know which end of "
+                             "the strike line it is measured from; give --fault DIP/AZIMUTH too")
+        if self.pitch is not None:
+            # validates the named end against the fault's strike line
+            slip.rhr_pitch(self.pitch[0], self.pitch[1], fault_dip_azimuth_deg=self.fault[1])
+
+
+def _crossing_text(c: int, given: bool) -> str:
+    if not given:
+        return "assumed hanging wall -> footwall"
+    return {1: "hanging wall -> footwall", -1: "footwall -> hanging wall"}.get(int(c),
+                                                                             "undetermined")
+
+
+def measure_cut(
+    *,
+    well: str,
+    method: str,
+    md_m: float,
+    md_top_m: float,
+    md_base_m: float,
+    delta_s_m: float,
+    trajectory,
+    bed_dip: BedDip,
+    assumptions: FaultAssumptions = FaultAssumptions(),
+    picks=None,
+    surface_above: str = "",
+    surface_below: str = "",
+    confidence: float = 1.0,
+    notes: list[str] | None = None,
+    expected_thickness_m: float = math.nan,
+    observed_thickness_m: float = math.nan,
+) -> FaultCut:
+    """Turn a stratigraphic jump at an MD into a fully measured :class:`FaultCut`.
+
+    Parameters
+    ----------
+    delta_s_m : float
+        Signed jump Δs = s(below) − s(above) in TST. [m]
+    md_m, md_top_m, md_base_m : float
+        Best estimate and bracket of the cut. [m]
+    trajectory : Trajectory
+        The well path (positions and tangents on the minimum-curvature arc).
+    bed_dip : BedDip
+        Bed attitude along the well.
+
+    Notes
+    -----
+    Section: missing when sign(Δs) = sign(r), r = t·n, repeated otherwise (methods.md §3.4).
+    Separation sense: Δs·c > 0 is normal (crossing hanging wall → footwall, c = +1, the well
+    steps down-section into older rock), < 0 reverse. Without a fault attitude c = +1 is
+    assumed and the row says so. VS = |Δs|/cos δ (Groshong 2006, eq. 7.3); throw and heave
+    from VS, fault dip θ and the apparent bed dip α in the fault-dip direction:
+    T = VS tan θ/(tan θ − tan α), H = VS/(tan θ − tan α) (methods.md §3.2).
+    """
+    notes = list(notes or [])
+    md = float(md_m)
+    pos = trajectory.position(np.array([md]))[0]
+    tangent = trajectory.tangent(np.array([md]))[0]
+    n = bed_dip.normals_at(np.array([md]), picks)[0]
+    bdip, bazi = (float(v[0]) for v in bed_dip.attitude_at(np.array([md]), picks))
+    r = float(tangent @ n)
+    ds = float(delta_s_m)
+
+    section = str(geometry.section_kind(ds, r, min_abs_r=MIN_BED_COSINE))
+    if section == "undetermined":
+        notes.append(f"well nearly parallel to bedding at the cut (t.n = {r:+.3f}): the jump "
+                     f"in stratigraphic level is {ds:+.1f} m TST, but it is neither clearly "
+                     "missing nor repeated section")
+
+    given = assumptions.fault is not None
+    if given:
+        fdip, fazi = assumptions.fault
+        crossing = int(geometry.crossing_direction(tangent, fault_dip_deg=fdip,
+                                                   fault_dip_azimuth_deg=fazi,
+                                                   min_abs_cos=MIN_FAULT_COSINE))
+        fault_type, reason = geometry.classify_fault(ds, r=r, crossing=crossing,
+                                                     min_abs_r=MIN_BED_COSINE)
+        if reason:
+            notes.append(reason)
+        alpha = float(geometry.apparent_dip(bdip, bazi, fazi))
+        dip_source = "given"
+    else:
+        crossing = 1
+        fault_type, reason = geometry.classify_fault(ds, r=r, crossing=1,
+                                                     min_abs_r=MIN_BED_COSINE)
+        if reason:
+            notes.append(reason)
+        fdip = geometry.andersonian_fault_dip(fault_type) if fault_type != "undetermined" \
+            else math.nan
+        fazi = math.nan
+        alpha = 0.0
+        dip_source = f"assumed ({fault_type}, Andersonian)" if fault_type != "undetermined" \
+            else "unknown"
+        if fault_type != "undetermined":
+            notes.append("fault attitude not given: crossing assumed hanging wall -> footwall, "
+                         "apparent bed dip in the fault section assumed 0")
+
+    tst = abs(ds)
+    tvt = float(geometry.true_vertical_thickness(tst, dip_deg=bdip))
+    vs = float(geometry.vertical_separation(ds, dip_deg=bdip))
+    if np.isfinite(fdip):
+        throw, heave = (float(v) for v in
+                        geometry.throw_and_heave(vs, fault_dip_deg=fdip,
+                                                 apparent_bed_dip_deg=alpha)[:2])
+    else:
+        throw = heave = math.nan
+    span = float(geometry.expected_md_span(tst, r))
+
+    net = strike_part = math.nan
+    if assumptions.pitch is not None and np.isfinite(throw):
+        p = slip.rhr_pitch(assumptions.pitch[0], assumptions.pitch[1],
+                           fault_dip_azimuth_deg=assumptions.fault[1])
+        net, _dip_part, strike_part = (float(v) for v in
+                                       slip.net_slip(throw, fault_dip_deg=fdip, rhr_pitch_deg=p))
+
+    elev = getattr(trajectory, "ref_elevation_m", None)
+    tvdss = float(pos[2] - elev) if elev is not None else math.nan
+    if elev is None:
+        notes.append("depth-reference elevation unknown: TVDSS not computed")
+
+    return FaultCut(
+        well=well, method=method, md_m=md, md_top_m=float(md_top_m), md_base_m=float(md_base_m),
+        tvd_m=float(pos[2]), tvdss_m=tvdss, x_m=float(pos[0]), y_m=float(pos[1]),
+        section=section, fault_type=str(fault_type), delta_s_m=ds, tst_m=tst, tvt_m=tvt,
+        md_span_m=span, vertical_separation_m=vs, throw_m=throw, heave_m=heave,
+        fault_dip_deg=float(fdip), fault_dip_azimuth_deg=float(fazi),
+        fault_dip_source=dip_source, crossing=_crossing_text(crossing, given),
+        surface_above=surface_above, surface_below=surface_below,
+        confidence=float(confidence), net_slip_m=net, strike_slip_m=strike_part,
+        bed_dip_deg=bdip, bed_dip_azimuth_deg=bazi,
+        expected_thickness_m=float(expected_thickness_m),
+        observed_thickness_m=float(observed_thickness_m),
+        notes="; ".join(notes),
+        extra={"r": r},
+    )
