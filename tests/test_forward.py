@@ -376,3 +376,35 @@ def test_column_from_a_curve_fills_gaps_and_drops_null_ends():
     assert len(col.type_log) == 200
     assert col.type_log["GR"].iloc[48] == pytest.approx(10 + 90 * 48 / 199)
     assert col.s_m.tolist() == [0.0, 20.0, 40.0, 60.0, 80.0]
+
+
+def test_synthetic_well_writes_files_the_readers_take_back(tmp_path):
+    from wellfault.io import read_las, read_survey, read_tops
+
+    col = synthetic_column(8, seed=4)
+    traj, eob = build_and_hold(30, 120)
+    traj = Trajectory.from_survey(traj.stations, x0_m=1000.0, y0_m=2000.0, ref_elevation_m=30.0)
+    syn = simulate_well(col, Beds(5, 45, origin_s_m=-900.0), [], traj, md_top_m=1000.0,
+                        md_base_m=1400.0, name="W-1", depth_unit="ft", noise_std=2.0, seed=1)
+    paths = syn.to_files(tmp_path)
+    well = read_las(paths["las"])
+    assert well.depth_unit.value == "ft" and well.ref_elevation_m == pytest.approx(30.0)
+    np.testing.assert_allclose(well.md_m, syn.well.md_m, atol=1e-6)
+    np.testing.assert_allclose(well.curves["GR"], syn.well.curves["GR"], rtol=1e-8)
+    tops = read_tops(paths["tops"])
+    np.testing.assert_allclose(tops["md_m"], syn.tops["md_m"], atol=1e-6)
+    survey = read_survey(paths["survey"])
+    back = Trajectory.from_survey(survey)
+    np.testing.assert_allclose(back.tvd(1300.0), traj.tvd(1300.0), atol=1e-6)
+
+
+def test_model_in_tvdss_shifts_by_the_kb_elevation():
+    col = _column(10, 30.0)
+    beds = Beds(0, 0, origin_s_m=-1000.0)  # column top at 1000 m TVDSS
+    traj = Trajectory.vertical(ref_elevation_m=40.0)
+    syn = simulate_well(col, beds, [], traj, md_top_m=1000.0, md_base_m=1100.0, curves=(),
+                        datum="sea level")
+    assert syn.tops["md_m"].iloc[0] == pytest.approx(1040.0)
+    with pytest.raises(InputError, match="ref_elevation_m"):
+        simulate_well(col, beds, [], Trajectory.vertical(), md_top_m=1000.0, md_base_m=1100.0,
+                      curves=(), datum="sea level")

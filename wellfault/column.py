@@ -21,24 +21,9 @@ import pandas as pd
 from numpy.typing import ArrayLike, NDArray
 
 from .errors import ColumnError, input_error
+from .geometry import bed_normal
 
 __all__ = ["ReferenceColumn"]
-
-
-def _down_section_normal(dip_deg: float, dip_azimuth_deg: float) -> NDArray[np.float64]:
-    """Unit normal of planar beds pointing down-section, ``(east, north, down)``.
-
-    ``n = (-sin d sin b, -sin d cos b, cos d)`` for dip ``d`` toward azimuth ``b``
-    (DESIGN.md section 2; the sign convention of the signed TST of Bateman & Konen 1979, as given
-    in reference/methods.md section 2).
-
-    Examples
-    --------
-    >>> _down_section_normal(0.0, 0.0).tolist()
-    [-0.0, -0.0, 1.0]
-    """
-    d, b = math.radians(float(dip_deg)), math.radians(float(dip_azimuth_deg))
-    return np.array([-math.sin(d) * math.sin(b), -math.sin(d) * math.cos(b), math.cos(d)])
 
 
 def _check_dip(bed_dip: object, source: object) -> tuple[float, float]:
@@ -456,7 +441,7 @@ class ReferenceColumn:
             raise ColumnError(f"{where}: surface(s) {dup} picked twice; a type well must show an "
                               "unfaulted section (choose another type well or drop the repeat)")
         dip, azi = _check_dip(bed_dip, where)
-        n = _down_section_normal(dip, azi)
+        n = bed_normal(dip, azi)
         pos = _position_fn(trajectory, well)
         md_tops = t["md_m"].to_numpy(dtype=float)
         p_tops = pos(md_tops)
@@ -531,7 +516,8 @@ def _as_bool(v: object) -> bool:
 def _position_fn(trajectory: object | None, well: object):
     """Position function md -> (N, 3) (x, y, tvd); vertical below the well head without a path."""
     if trajectory is not None:
-        return lambda md: np.asarray(trajectory.position(np.asarray(md, dtype=float)),  # type: ignore[attr-defined]
+        position = trajectory.position  # type: ignore[attr-defined]
+        return lambda md: np.asarray(position(np.asarray(md, dtype=float)),
                                      dtype=float).reshape(-1, 3)
     x0 = getattr(well, "x_m", None) or 0.0
     y0 = getattr(well, "y_m", None) or 0.0

@@ -24,8 +24,9 @@ import numpy as np
 import pandas as pd
 from numpy.typing import ArrayLike, NDArray
 
-from .column import ReferenceColumn, _down_section_normal
+from .column import ReferenceColumn
 from .errors import ColumnError, InputError, WellfaultWarning, input_error
+from .geometry import bed_normal, fault_normal_up
 from .units import DepthUnit, parse_depth_unit
 
 __all__ = [
@@ -37,11 +38,14 @@ __all__ = [
     "column_from_real_curve",
     "TRUTH_COLUMNS",
     "BEYOND_COLUMN",
+    "MODEL_DATUMS",
     "LITHOLOGY_CURVES",
 ]
 
 #: How the type log is read beyond its ends: hold the end value, or reflect the log.
 BEYOND_COLUMN = ("clip", "mirror")
+#: Vertical datum of the model (beds and faults): the well's depth reference, or sea level.
+MODEL_DATUMS = ("reference", "sea level")
 
 #: Columns of :attr:`SyntheticWell.cuts`, in order.
 TRUTH_COLUMNS = (
@@ -111,7 +115,7 @@ class Beds:
     @property
     def normal(self) -> NDArray[np.float64]:
         """Down-section unit normal n (east, north, down)."""
-        return _down_section_normal(self.dip_deg, self.dip_azimuth_deg)
+        return bed_normal(self.dip_deg, self.dip_azimuth_deg)
 
     def s(self, points: ArrayLike) -> NDArray[np.float64]:
         """Stratigraphic position of points (N, 3) of (x, y, tvd). [m TST]"""
@@ -122,8 +126,7 @@ class Beds:
     def through(cls, dip_deg: float, dip_azimuth_deg: float, point: ArrayLike,
                 s_m: float) -> Beds:
         """Beds with position ``s_m`` at ``point`` (e.g. a surface's top at a known TVD)."""
-        n = _down_section_normal(*_check_attitude(dip_deg, dip_azimuth_deg, "beds",
-                                                  allow_zero=True))
+        n = bed_normal(*_check_attitude(dip_deg, dip_azimuth_deg, "beds", allow_zero=True))
         p = np.asarray(_as_point(point, "beds point"))
         return cls(dip_deg, dip_azimuth_deg, float(s_m) - float(n @ p))
 
@@ -180,8 +183,7 @@ class PlanarFault:
     @property
     def normal_up(self) -> NDArray[np.float64]:
         """Upward unit normal m, pointing into the hanging wall (east, north, down)."""
-        t, b = math.radians(self.dip_deg), math.radians(self.dip_azimuth_deg)
-        return np.array([math.sin(t) * math.sin(b), math.sin(t) * math.cos(b), -math.cos(t)])
+        return fault_normal_up(self.dip_deg, self.dip_azimuth_deg)
 
     @property
     def down_dip(self) -> NDArray[np.float64]:
@@ -388,7 +390,7 @@ class SyntheticWell:
         Lengths are written in ``depth_unit`` (default: the well's ``depth_unit``), with the unit
         in the LAS header and in the CSV column names (``md_ft``). Returns the paths by kind.
         """
-        from .io import write_las
+        from .io import write_las, write_survey, write_tops
 
         unit = parse_depth_unit(depth_unit if depth_unit is not None
                                 else getattr(self.well, "depth_unit", "m"))
@@ -398,34 +400,14 @@ class SyntheticWell:
         paths = {"las": folder / f"{stem}.las", "tops": folder / f"{stem}_tops.csv",
                  "survey": folder / f"{stem}_survey.csv"}
         write_las(self.well, paths["las"], depth_unit=unit)
-        tops_frame(self.tops, unit).to_csv(paths["tops"], index=False, lineterminator="\n")
-        survey_frame(self.trajectory, unit).to_csv(paths["survey"], index=False,
-                                                   lineterminator="\n")
+        write_tops(self.tops, paths["tops"], depth_unit=unit)
+        write_survey(self.trajectory.stations, paths["survey"],  # type: ignore[attr-defined]
+                     depth_unit=unit)
         return paths
 
 
 def _file_stem(name: str) -> str:
     return re.sub(r"[^A-Za-z0-9_.-]+", "_", name).strip("_") or "well"
-
-
-def tops_frame(tops: pd.DataFrame, unit: DepthUnit | str = "m", *, decimals: int = 3) -> pd.DataFrame:
-    """Tops ``well, surface, md_m`` as written to CSV: MD in ``unit`` (column ``md_<u>``)."""
-    u = parse_depth_unit(unit)
-    out = tops[["well", "surface"]].copy()
-    out[f"md_{u.suffix}"] = np.round(tops["md_m"].to_numpy(dtype=float) / u.metres, decimals)
-    return out
-
-
-def survey_frame(trajectory: object, unit: DepthUnit | str = "m", *,
-                 decimals: int = 4) -> pd.DataFrame:
-    """A trajectory's stations as a survey table ``md_<u>, inc_deg, azi_deg``."""
-    u = parse_depth_unit(unit)
-    st = trajectory.stations  # type: ignore[attr-defined]
-    return pd.DataFrame({
-        f"md_{u.suffix}": np.round(st["md_m"].to_numpy(dtype=float) / u.metres, decimals),
-        "inc_deg": np.round(st["inc_deg"].to_numpy(dtype=float), decimals),
-        "azi_deg": np.round(st["azi_deg"].to_numpy(dtype=float), decimals),
-    })
 
 
 def simulate_well(
@@ -449,6 +431,7 @@ def simulate_well(
     beyond: str = "clip",
     depth_unit: DepthUnit | str = "m",
     ref_name: str = "KB",
+    datum: str = "reference",
 ) -> SyntheticWell:
     """Draw the logs, picked tops and true fault cuts of a well through a faulted model.
 
@@ -487,6 +470,12 @@ def simulate_well(
         section); ``"mirror"`` reflects the log at its ends (keeps texture).
     depth_unit : DepthUnit or str
         The well's file unit (used when writing files); the curves stay in metres.
+    ref_name : str
+        Name of the well's depth reference (``"KB"``, ``"DF"``, ...).
+    datum : {"reference", "sea level"}
+        Vertical datum of the beds' and faults' z: the well's depth reference (TVD, default), or
+        sea level (TVDSS = TVD − the trajectory's ``ref_elevation_m``), which lets one model
+        serve wells with different KB elevations.
 
     Returns
     -------
@@ -518,6 +507,8 @@ def simulate_well(
 
     if beyond not in BEYOND_COLUMN:
         raise InputError(f"beyond={beyond!r} is not known; use one of {', '.join(BEYOND_COLUMN)}")
+    if datum not in MODEL_DATUMS:
+        raise InputError(f"datum={datum!r} is not known; use one of {', '.join(MODEL_DATUMS)}")
     faults = tuple(faults)
     for f in faults:
         if not isinstance(f, PlanarFault):
@@ -529,6 +520,18 @@ def simulate_well(
                           fix="give a positive step and an interval going down-hole")
     if trajectory is None:
         trajectory = Trajectory.vertical(name=name)
+    dz = 0.0
+    if datum == "sea level":
+        elev = getattr(trajectory, "ref_elevation_m", None)
+        if elev is None:
+            raise InputError(f"well {name!r}: datum='sea level' needs the trajectory's "
+                             "ref_elevation_m (elevation of the depth reference); give it")
+        dz = float(elev)
+
+    def model_position(m_: ArrayLike) -> NDArray[np.float64]:
+        p_ = np.array(trajectory.position(m_), dtype=float)  # type: ignore[attr-defined]
+        p_[:, 2] -= dz
+        return p_
     curves = tuple(curves)
     if curves:
         if column.type_log is None:
@@ -546,8 +549,7 @@ def simulate_well(
 
     nsamp = int(math.floor((base - top) / step + 1e-9)) + 1
     md = top + step * np.arange(nsamp)
-    pos = np.asarray(trajectory.position(md), dtype=float)  # type: ignore[attr-defined]
-    q, mem = _restore(pos, faults)
+    q, mem = _restore(model_position(md), faults)
     s_loc = q @ n_vec + beds.origin_s_m
     s_ref = tmap.to_reference(s_loc)
 
@@ -557,8 +559,7 @@ def simulate_well(
     changed = np.flatnonzero(np.any(mem[1:] != mem[:-1], axis=1)) if faults else np.zeros(0, int)
 
     def state(m_: float):
-        p_ = np.asarray(trajectory.position([m_]), dtype=float)  # type: ignore[attr-defined]
-        return _restore(p_, faults)[1][0]
+        return _restore(model_position([m_]), faults)[1][0]
 
     for i in changed:
         lo_md, hi_md = float(md[i]), float(md[i + 1])
@@ -575,7 +576,7 @@ def simulate_well(
                     b = c
             b_state = state(b)
             c_md = 0.5 * (a + b)
-            p_c = np.asarray(trajectory.position([c_md]), dtype=float)  # type: ignore[attr-defined]
+            p_c = model_position([c_md])
             q_above = _restore(p_c, faults, lo_state[None, :].copy())[0]
             q_below = _restore(p_c, faults, b_state[None, :].copy())[0]
             loc_above = float((q_above @ n_vec)[0] + beds.origin_s_m)
@@ -584,7 +585,8 @@ def simulate_well(
             s_below = float(tmap.to_reference(np.array([loc_below]))[0])
             k = int(np.flatnonzero(lo_state != b_state)[0])
             crossing = 1 if lo_state[k] else -1
-            t_c = np.asarray(trajectory.tangent([c_md]), dtype=float)[0]  # type: ignore[attr-defined]
+            t_c = np.asarray(trajectory.tangent([c_md]),  # type: ignore[attr-defined]
+                             dtype=float)[0]
             r = float(t_c @ n_vec)
             ds = s_below - s_above
             if ds == 0.0 or abs(r) < 1e-12:
@@ -593,7 +595,7 @@ def simulate_well(
                 section = "missing" if (ds > 0) == (r > 0) else "repeated"
             fault_type = ("undetermined" if ds == 0.0
                           else ("normal" if crossing * ds > 0 else "reverse"))
-            tvd_c = float(p_c[0, 2])
+            tvd_c = float(p_c[0, 2]) + dz
             ref_el = getattr(trajectory, "ref_elevation_m", None)
             first_below = float(md[i + 1])
             cut_rows.append({
@@ -638,7 +640,8 @@ def simulate_well(
         tl = column.type_log
         grid = tl.index.to_numpy(dtype=float)  # type: ignore[union-attr]
         for c in curves:
-            v = _read_type_log(grid, tl[c].to_numpy(dtype=float), s_ref, beyond)  # type: ignore[index]
+            values = tl[c].to_numpy(dtype=float)  # type: ignore[index]
+            v = _read_type_log(grid, values, s_ref, beyond)
             v = _per_curve(gain, c, "gain") * v + _per_curve(offset, c, "offset")
             sd = _per_curve(noise_std, c, "noise_std")
             if sd > 0:
@@ -738,6 +741,7 @@ def synthetic_column(
     curves: Iterable[str] = ("GR",),
     thickness_range_m: tuple[float, float] = (10.0, 80.0),
     resolution_m: float = 0.5,
+    pad_m: float = 0.0,
     name: str = "synthetic column",
 ) -> ReferenceColumn:
     """Invent a reference column with lithology-like type-log curves.
@@ -761,12 +765,17 @@ def synthetic_column(
         Any of :data:`LITHOLOGY_CURVES`.
     thickness_range_m : (float, float)
         Range of unit thicknesses. [m]
+    resolution_m : float
+        Vertical resolution the curves are smoothed to. [m]
+    pad_m : float
+        Extra type log above the top surface (shaly overburden, negative s) and below the base
+        (underburden), so wells logged from above the first surface read a textured log. [m]
 
     Returns
     -------
     ReferenceColumn
         Surfaces at s = 0 ... with a defined base, and a type log on ``s = k * ds`` covering
-        ``[0, base]``.
+        ``[-pad_m, base + pad_m]``.
     """
     curves = tuple(curves)
     bad = [c for c in curves if c not in LITHOLOGY_CURVES]
@@ -780,6 +789,8 @@ def synthetic_column(
         raise InputError(f"thickness_range_m must be 0 < low <= high (got {thickness_range_m})")
     if not ds > 0:
         raise InputError(f"ds must be positive (got {ds})")
+    if not pad_m >= 0:
+        raise InputError(f"pad_m must be zero or positive (got {pad_m})")
     n_units = int(n_units)
     rng = np.random.default_rng(seed)
     roots = rng.permutation(len(_ROOTS))[:n_units]
@@ -791,22 +802,32 @@ def synthetic_column(
     base = float(np.sum(th))
     names = [f"{_ROOTS[r]} {_UNIT_KINDS[k][1]}" for r, k in zip(roots, kinds)]
 
-    nk = int(math.floor(base / ds + 1e-9)) + 1
-    grid = np.arange(nk) * ds
+    k0 = -int(math.floor(pad_m / ds + 1e-9))
+    k1 = int(math.floor((base + pad_m) / ds + 1e-9))
+    grid = np.arange(k0, k1 + 1) * ds
+    nk = grid.size
     lith_idx = np.empty(nk, dtype=object)
     gr = np.empty(nk)
-    for u in range(n_units):
-        mix, _ = _UNIT_KINDS[kinds[u]]
+    # pseudo-units for the pads: shaly overburden above, heterolithic underburden below
+    seg_top = np.concatenate([[grid[0]], s_top, [base]])
+    seg_kind = ["shale", *kinds, "hetero"]
+    for u in range(n_units + 2):
+        u_top = float(seg_top[u])
+        u_base = float(seg_top[u + 1]) if u < n_units + 1 else float(grid[-1]) + ds
+        if u_base <= u_top:
+            continue
+        kind = seg_kind[u]
+        mix, _ = _UNIT_KINDS[kind]
         liths, probs = list(mix), np.array(list(mix.values()))
-        u_top, u_base = s_top[u], s_top[u] + th[u]
         z = u_top
         bed_tops, bed_liths = [], []
         while z < u_base:
             bed_tops.append(z)
             bed_liths.append(liths[int(rng.choice(len(liths), p=probs / probs.sum()))])
             z += float(rng.uniform(0.3, 6.0))
-        sel_unit = (grid >= u_top) & (grid < u_base) if u < n_units - 1 else (grid >= u_top)
-        idx_unit = np.flatnonzero(sel_unit)
+        idx_unit = np.flatnonzero((grid >= u_top - 1e-9) & (grid < u_base - 1e-9))
+        if idx_unit.size == 0:
+            continue
         bt = np.asarray(bed_tops)
         which = np.clip(np.searchsorted(bt, grid[idx_unit], side="right") - 1, 0, len(bt) - 1)
         for b in range(len(bt)):
@@ -822,7 +843,7 @@ def synthetic_column(
                 ramp = 0.0
             gr[sel] = level + ramp
             lith_idx[sel] = lith
-        if u % 3 == 1 or kinds[u] == "shale":  # a thin hot-shale marker near some unit tops
+        if 0 < u <= n_units and (u % 3 == 2 or kind == "shale"):  # thin hot-shale markers
             m_top = u_top + float(rng.uniform(0.2, 1.0))
             sel = idx_unit[(grid[idx_unit] >= m_top)
                            & (grid[idx_unit] < m_top + float(rng.uniform(0.6, 1.5)))]
