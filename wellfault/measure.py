@@ -22,11 +22,14 @@ from .results import FaultCut
 
 __all__ = ["FaultAssumptions", "measure_cut", "MIN_BED_COSINE", "MIN_FAULT_COSINE"]
 
-#: |t·n| below this: the well runs (nearly) parallel to bedding, so "missing" or "repeated"
-#: has no meaning (methods.md §3.4, degenerate cases). About 3° from bedding; common practice.
-MIN_BED_COSINE = 0.05
-#: |t·m| below this: the well runs (nearly) parallel to the fault plane (about 3°).
-MIN_FAULT_COSINE = 0.05
+#: |t·n| below this (the well within 2° of bedding): "missing" or "repeated" has no meaning
+#: (methods.md §3.4, degenerate cases). Common practice.
+MIN_BED_COSINE = float(np.sin(np.radians(2.0)))
+#: |t·m| below this (the well within 0.5° of the fault plane): no crossing direction.
+MIN_FAULT_COSINE = float(np.sin(np.radians(0.5)))
+#: Within this angle of the fault plane the crossing direction is reported with a warning
+#: note: it depends on the fault dip given, which is rarely known that well.
+SENSITIVE_FAULT_ANGLE_DEG = 5.0
 
 
 @dataclass(frozen=True)
@@ -123,6 +126,12 @@ def measure_cut(
                                                      min_abs_r=MIN_BED_COSINE)
         if reason:
             notes.append(reason)
+        m = geometry.fault_normal_up(fdip, fazi)
+        angle = float(np.degrees(np.arcsin(min(1.0, abs(float(tangent @ m))))))
+        if crossing != 0 and angle < SENSITIVE_FAULT_ANGLE_DEG:
+            notes.append(f"well only {angle:.1f} deg from the fault plane at the cut: the "
+                         "crossing direction (and so the fault type) depends on the fault dip "
+                         "given; check it")
         alpha = float(geometry.apparent_dip(bdip, bazi, fazi))
         dip_source = "given"
     else:

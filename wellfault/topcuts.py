@@ -37,16 +37,20 @@ class TopsTolerance:
     ``relative`` applies to the expected stratigraphic interval between the two picks (natural
     thickness variation, default 15 %); ``floor_m`` is the absolute floor (default 2 m: two to
     three times the vertical resolution of a gamma-ray tool plus pick uncertainty, methods.md §7,
-    common practice).
+    common practice). ``pick_uncertainty_m`` widens each cut's bracket beyond the two picks: a
+    fault just above or below a pick can move the pick across it.
     """
 
     relative: float = 0.15
     floor_m: float = 2.0
+    pick_uncertainty_m: float = 1.0
 
     def __post_init__(self):
         if not (0 <= self.relative < 1):
             raise InputError(f"relative thickness tolerance must be in [0, 1) (got "
                              f"{self.relative}); 0.15 means 15 %")
+        if not (self.pick_uncertainty_m >= 0):
+            raise InputError(f"pick uncertainty must be >= 0 (got {self.pick_uncertainty_m})")
         if not (self.floor_m >= 0):
             raise InputError(f"absolute tolerance floor must be >= 0 (got {self.floor_m})")
 
@@ -221,8 +225,9 @@ def find_cuts_from_tops(
         excess = (abs(ds) - allowed[k]) / max(allowed[k], 1e-9)
         conf = 1.0 if k in certain else float(1.0 - math.exp(-2.0 * max(excess, 0.0)))
         cut = measure_cut(
-            well=name, method="tops", md_m=md_mid, md_top_m=row["md_top_m"],
-            md_base_m=row["md_base_m"], delta_s_m=ds, trajectory=trajectory, bed_dip=bed_dip,
+            well=name, method="tops", md_m=md_mid,
+            md_top_m=row["md_top_m"] - tolerance.pick_uncertainty_m,
+            md_base_m=row["md_base_m"] + tolerance.pick_uncertainty_m, delta_s_m=ds, trajectory=trajectory, bed_dip=bed_dip,
             assumptions=assumptions, picks=picks, surface_above=row["surface_above"],
             surface_below=row["surface_below"], confidence=conf, notes=notes,
             expected_thickness_m=float(row["expected_m"]),
