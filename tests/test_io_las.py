@@ -88,7 +88,8 @@ def wellington(refdata: Path) -> Well:
 
 
 def test_p129_log_reads_in_metres_with_its_depth_range_and_step(p129: Well) -> None:
-    # unit, depth range 1.07-1939.1 m and step 0.1524 m: reference_data/README.md (welly 0.5.2 sdist)
+    # unit, depth range 1.07-1939.1 m and step 0.1524 m: reference_data/README.md
+    # (welly 0.5.2 sdist)
     assert p129.depth_unit is DepthUnit.M
     assert p129.md_range_m[0] == pytest.approx(1.07, abs=0.005)
     assert p129.md_range_m[1] == pytest.approx(1939.1, abs=0.05)
@@ -519,3 +520,10 @@ def test_write_then_read_las_round_trips_depths_units_and_values(
         assert back.ref_elevation_m is None
     else:
         assert back.ref_elevation_m == pytest.approx(elevation, abs=1e-6)
+
+
+def test_las_version_3_is_refused_with_the_fix(tmp_path: Path) -> None:
+    text = las_text().replace("VERS.  2.0", "VERS.  3.0")
+    with pytest.raises(InputError, match=r"v3\.las: LAS version 3\.0 is not supported; export the "
+                                         r"log as LAS 2\.0"):
+        read_las(write(tmp_path, text, "v3.las"))

@@ -11,6 +11,7 @@ names the file, the place, the bad value and the fix; recoverable ones warn with
 
 from __future__ import annotations
 
+import functools
 import io
 import math
 import re
@@ -60,33 +61,43 @@ _COORD_PAIRS = (("XCOORD", "YCOORD"), ("X", "Y"), ("XWELL", "YWELL"), ("X_COORD"
 class _Scan:
     """What a plain text pass finds before lasio parses the file."""
 
+    source: str
+    header_text: str  # everything before the ~A line
+    data_text: str  # the ~A section's body
+    a_line: int  # 1-based line number of the ~A marker
     wrapped: bool
-    n_curves: int
-    data_lines: list[int]  # 1-based file line of each data row (unwrapped files)
-    a_line: int
+    n_curves: int  # non-comment lines of the ~Curve section
+
+    @functools.cached_property
+    def data_lines(self) -> list[int]:
+        """1-based file line number of each data line (blank and # lines skipped)."""
+        return [self.a_line + 1 + k for k, ln in enumerate(self.data_text.splitlines())
+                if ln.strip() and not ln.lstrip().startswith("#")]
+
+    def data_rows(self) -> list[tuple[int, str]]:
+        lines = self.data_text.splitlines()
+        return [(n, lines[n - self.a_line - 1]) for n in self.data_lines]
+
+
+_SECTION = re.compile(r"^[ \t]*~(.?)", flags=re.MULTILINE)
+_FIRST_CONTENT = re.compile(r"^[ \t]*([^\s#].*)$", flags=re.MULTILINE)
+_RUN_ON = re.compile(r"\d-\d|\.\d*\.")
 
 
 def _scan(text: str, source: str) -> _Scan:
-    """Check the section layout and the shape of the ~A section."""
-    lines = text.splitlines()
-    first = next(
-        ((k, ln) for k, ln in enumerate(lines) if ln.strip() and not ln.lstrip().startswith("#")),
-        None,
-    )
+    """Check the section layout and split the file into header and ~A body."""
+    first = _FIRST_CONTENT.search(text)
     if first is None:
         raise InputError(f"{source}: file has no content (only blank or comment lines); give a "
                          "LAS 2.0 file")
-    if not first[1].lstrip().startswith("~"):
+    if not first.group(1).startswith("~"):
+        line = text.count("\n", 0, first.start()) + 1
         raise InputError(
-            f"{source}: not a LAS file: line {first[0] + 1} should start a section such as "
-            f"~Version (got {first[1].strip()[:40]!r}); give a LAS 2.0 file, or read tables "
+            f"{source}: not a LAS file: line {line} should start a section such as "
+            f"~Version (got {first.group(1).strip()[:40]!r}); give a LAS 2.0 file, or read tables "
             "with read_table"
         )
-    sections: list[tuple[int, str]] = []
-    for k, ln in enumerate(lines):
-        s = ln.lstrip()
-        if s.startswith("~"):
-            sections.append((k, s[1:2].upper()))
+    sections = [(m.start(), m.group(1).upper()) for m in _SECTION.finditer(text)]
     letters = [sec for _, sec in sections]
     if "A" not in letters:
         raise InputError(
@@ -99,46 +110,63 @@ def _scan(text: str, source: str) -> _Scan:
             "~Curve section listing the depth curve (with its unit) and each log curve"
         )
 
-    def body(letter: str) -> list[tuple[int, str]]:
+    def body(letter: str) -> str:
         idx = letters.index(letter)
-        start = sections[idx][0] + 1
-        end = sections[idx + 1][0] if idx + 1 < len(sections) else len(lines)
-        return [(k + 1, lines[k]) for k in range(start, end)
-                if lines[k].strip() and not lines[k].lstrip().startswith("#")]
+        start = text.find("\n", sections[idx][0])
+        start = len(text) if start < 0 else start + 1
+        end = sections[idx + 1][0] if idx + 1 < len(sections) else len(text)
+        return text[start:end] if start < end else ""
+
+    def content(chunk: str) -> list[str]:
+        return [ln for ln in chunk.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
 
     wrapped = False
     if "V" in letters:
-        for _, ln in body("V"):
+        for ln in content(body("V")):
             m = re.match(r"\s*WRAP\s*\.\s*([^\s:]*)", ln, flags=re.IGNORECASE)
             if m:
                 wrapped = m.group(1).upper() in ("YES", "Y", "TRUE")
-    n_curves = len(body("C"))
+            m = re.match(r"\s*VERS\s*\.\s*([^\s:]*)", ln, flags=re.IGNORECASE)
+            if m and m.group(1).startswith("3"):
+                raise InputError(
+                    f"{source}: LAS version {m.group(1)} is not supported; export the log as "
+                    "LAS 2.0 (or 1.2)"
+                )
+    n_curves = len(content(body("C")))
     if n_curves == 0:
         raise InputError(f"{source}: the ~Curve section is empty; list the depth curve and each "
                          "log curve")
-    a_line = sections[letters.index("A")][0] + 1
-    data = body("A")
-    if not data:
+    a_pos = sections[letters.index("A")][0]
+    a_line = text.count("\n", 0, a_pos) + 1
+    scan = _Scan(source, text[:a_pos], body("A"), a_line, wrapped, n_curves)
+    if not scan.data_lines:
         raise InputError(f"{source}: the ~A section (line {a_line}) has no data rows; the file "
                          "is header-only or was cut off; export the log again with its data")
-    data_lines = [k for k, _ in data]
-    if wrapped:
-        total = sum(len(ln.split()) for _, ln in data)
+    return scan
+
+
+def _check_data_shape(scan: _Scan) -> None:
+    """Raise on truncated, ragged or wrapped-but-undeclared data (the slow, exact check)."""
+    source, n_curves = scan.source, scan.n_curves
+    rows = scan.data_rows()
+    if scan.wrapped:
+        total = sum(len(ln.split()) for _, ln in rows)
         if total % n_curves:
             raise InputError(
                 f"{source}: the wrapped ~A section holds {total} values, not a whole number of "
                 f"depth steps of {n_curves} curves; the file looks cut off (last line "
-                f"{data[-1][0]}); export it again or delete the incomplete last step"
+                f"{rows[-1][0]}); export it again or delete the incomplete last step"
             )
-        return _Scan(True, n_curves, data_lines, a_line)
-    if any('"' in ln for _, ln in data[:50]):
-        return _Scan(False, n_curves, data_lines, a_line)  # quoted text: leave it to lasio
-    counts = np.fromiter((len(ln.split()) for _, ln in data), dtype=np.int64, count=len(data))
-    bad = np.flatnonzero(counts != n_curves)
-    if bad.size:
-        k = int(bad[0])
-        line, got = data[k][0], int(counts[k])
-        if k == len(data) - 1 and got < n_curves:
+        return
+    if any('"' in ln for _, ln in rows[:50]):
+        return  # quoted text cells: leave the splitting to lasio
+    for k, (line, ln) in enumerate(rows):
+        got = len(ln.split())
+        if got == n_curves:
+            continue
+        if _RUN_ON.search(ln):
+            return  # numbers run together in fixed-width columns: lasio's read policy splits them
+        if k == len(rows) - 1 and got < n_curves:
             raise InputError(
                 f"{source}: the last data line (line {line}) has {got} of {n_curves} values: the "
                 "file looks cut off; export it again or delete the incomplete last line"
@@ -153,7 +181,19 @@ def _scan(text: str, source: str) -> _Scan:
             f"{source}, line {line}: {got} values but the ~Curve section lists only {n_curves} "
             "curves; add the missing curve definitions to ~Curve or remove the extra column"
         )
-    return _Scan(False, n_curves, data_lines, a_line)
+
+
+def _fast_data(scan: _Scan, n_curves: int) -> NDArray[np.float64] | None:
+    """The ~A block as a float array when it is plain numbers in tidy rows, else None."""
+    if scan.wrapped or n_curves != scan.n_curves:
+        return None
+    try:
+        data = np.loadtxt(io.StringIO(scan.data_text), dtype=np.float64, comments="#", ndmin=2)
+    except ValueError:
+        return None
+    if data.ndim != 2 or data.shape[1] != n_curves:
+        return None
+    return data
 
 
 def _items(las: lasio.LASFile) -> dict[str, lasio.HeaderItem]:
@@ -388,6 +428,18 @@ def _location(items: dict[str, lasio.HeaderItem], *, source: str,
     return x * ux.metres, y * uy.metres
 
 
+def _lasio_read(text: str, source: str, **kwargs: object) -> lasio.LASFile:
+    """lasio.read on text, with any lasio failure turned into one InputError."""
+    try:
+        return lasio.read(io.StringIO(text), mnemonic_case="upper", **kwargs)
+    except Exception as err:  # lasio raises many unrelated types; all mean "cannot parse"
+        detail = str(err).strip().splitlines()[0] if str(err).strip() else type(err).__name__
+        raise InputError(
+            f"{source}: cannot be parsed as LAS ({detail}); check the header lines near the "
+            "place named and that the file is LAS 1.2/2.0"
+        ) from err
+
+
 def read_las(
     path: PathLike,
     *,
@@ -447,34 +499,32 @@ def read_las(
         raise InputError(f"{source}: file is empty; give a LAS 2.0 file")
     text = _decode(data, source)
     scan = _scan(text, source)
-    try:
-        las = lasio.read(
-            io.StringIO(text),
-            engine="normal" if scan.wrapped else "numpy",
-            mnemonic_case="upper",
-        )
-    except Exception as err:  # lasio raises many unrelated types; all mean "cannot parse"
-        detail = str(err).strip().splitlines()[0] if str(err).strip() else type(err).__name__
-        raise InputError(
-            f"{source}: cannot be parsed as LAS ({detail}); check the header lines near the "
-            "place named and that the file is LAS 1.2/2.0"
-        ) from err
-    if len(las.curves) == 0 or las.data is None or np.size(las.data) == 0:
-        raise InputError(f"{source}: no curves or no data after parsing; export the log again")
+    las = _lasio_read(scan.header_text, source, ignore_data=True)
+    if len(las.curves) == 0:
+        raise InputError(f"{source}: the ~Curve section lists no curves; list the depth curve "
+                         "and each log curve")
+    data = _fast_data(scan, len(las.curves))
+    columns: list[tuple[str, NDArray[np.float64], int]]
+    if data is not None:
+        columns = [(str(c.mnemonic), data[:, k].copy(), 0) for k, c in enumerate(las.curves)]
+    else:
+        _check_data_shape(scan)
+        las = _lasio_read(text, source, engine="normal" if scan.wrapped else "numpy")
+        if len(las.curves) == 0 or las.data is None or np.size(las.data) == 0:
+            raise InputError(f"{source}: no curves or no data after parsing; export the log "
+                             "again")
+        columns = [(str(c.mnemonic),
+                    *_curve_values(c, source=source, is_index=k == 0, scan=scan))
+                   for k, c in enumerate(las.curves)]
     items = _items(las)
     unit = _resolve_depth_unit(las, items, source=source, given=depth_unit,
                                us_survey_foot=us_survey_foot)
 
     null_item = items.get("NULL")
     null = _number(null_item.value) if null_item is not None else None
-    md_file, _ = _curve_values(las.curves[0], source=source, is_index=True, scan=scan)
-    curves: dict[str, NDArray[np.float64]] = {}
-    text_counts: dict[str, int] = {}
-    for curve in las.curves[1:]:
-        values, n_text = _curve_values(curve, source=source, is_index=False, scan=scan)
-        curves[str(curve.mnemonic)] = values
-        if n_text:
-            text_counts[str(curve.mnemonic)] = n_text
+    md_file = columns[0][1]
+    curves = {name: values for name, values, _ in columns[1:]}
+    text_counts = {name: n for name, _, n in columns[1:] if n}
     if text_counts:
         listed = ", ".join(f"{name} ({n})" for name, n in text_counts.items())
         warnings.warn(f"{source}: text in numeric curves set to NaN: {listed} cell(s)",
@@ -681,11 +731,6 @@ def write_las(well: Well, path: PathLike, *, depth_unit: DepthUnit | str | None 
     depth_text = _format_depths(md)
     values = well.curves.to_numpy(dtype=np.float64, copy=True)
     values[~np.isfinite(values)] = null
-    body = io.StringIO()
-    if values.shape[1]:
-        cols = np.char.mod("%.10g", values)
-        for d, row in zip(depth_text, cols):
-            body.write(d + " " + " ".join(row) + "\n")
-    else:
-        body.write("\n".join(depth_text) + ("\n" if depth_text else ""))
-    return _atomic_write_text(path, "\n".join(head) + "\n" + body.getvalue())
+    row_format = "%s" + " %.10g" * values.shape[1]
+    body = "".join(row_format % (d, *row) + "\n" for d, row in zip(depth_text, values.tolist()))
+    return _atomic_write_text(path, "\n".join(head) + "\n" + body)

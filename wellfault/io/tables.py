@@ -152,67 +152,107 @@ def _normalise_name(name: str) -> str:
     return " ".join(name.replace("\ufeff", "").strip().lower().split())
 
 
+def _cells_fast(text: str, delimiter: str, header_line: int, width: int) -> pd.DataFrame | None:
+    """Cells after the header through pandas' C parser, or None to use the exact csv path.
+
+    Used only when the text has no quote characters, so that every physical line is one row
+    and the row's line number is known. Rows longer than the header, or any parser error, fall
+    back to the csv path, which names the offending line.
+    """
+    if '"' in text:
+        return None
+    try:
+        frame = pd.read_csv(io.StringIO(text), sep=delimiter, header=None, dtype=str,
+                            na_filter=False, skip_blank_lines=False, skiprows=header_line,
+                            engine="c", quoting=csv.QUOTE_NONE)
+    except pd.errors.EmptyDataError:
+        return pd.DataFrame({k: pd.Series([], dtype=object) for k in range(width)},
+                            index=pd.Index([], name="line", dtype=np.int64))
+    except (pd.errors.ParserError, ValueError):
+        return None
+    if frame.shape[1] > width:
+        extra = frame.iloc[:, width:].astype(object)
+        if (extra.apply(lambda c: c.str.strip()) != "").any().any():
+            return None
+        frame = frame.iloc[:, :width]
+    for k in range(frame.shape[1], width):
+        frame[k] = ""
+    frame.columns = range(width)
+    frame.index = pd.Index(header_line + 1 + np.arange(len(frame)), name="line", dtype=np.int64)
+    return frame
+
+
 def _read_raw(path: PathLike) -> _RawTable:
     p, data = _read_bytes(path)
     source = str(p)
     if not data.strip():
         raise InputError(f"{source}: file is empty; give a table with a header line and rows")
     text = _decode(data, source)
-    lines = text.splitlines()
-    header_line = next(
-        (ln for ln in lines if ln.strip() and not ln.lstrip().startswith("#")), None
-    )
-    if header_line is None:
+    first = re.search(r"^[ \t]*([^\s#].*)$", text, flags=re.MULTILINE)
+    if first is None:
         raise InputError(f"{source}: no header line (only blank or # comment lines); add one")
-    delimiter = _sniff_delimiter(header_line)
+    delimiter = _sniff_delimiter(first.group(1))
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
     header: list[str] | None = None
+    header_line = 1
     rows: list[list[str]] = []
     line_numbers: list[int] = []
     try:
         for cells in reader:
-            line = reader.line_num
-            cells = [c.strip() for c in cells]
-            if not any(cells):
-                continue
-            if header is None:
-                if cells[0].startswith("#"):
-                    continue
-                header = cells
-                continue
-            if len(cells) > len(header):
-                extra = cells[len(header):]
-                if any(extra):
-                    raise input_error(
-                        f"line has {len(cells)} fields but the header has {len(header)}",
-                        source=source,
-                        row=line,
-                        fix=f"quote text that contains the delimiter {delimiter!r} or fix the row",
-                    )
-                cells = cells[: len(header)]
-            elif len(cells) < len(header):
-                cells = cells + [""] * (len(header) - len(cells))
-            rows.append(cells)
-            line_numbers.append(line)
+            stripped = [c.strip() for c in cells]
+            if any(stripped) and not stripped[0].startswith("#"):
+                header, header_line = stripped, reader.line_num
+                break
+        if header is None:
+            raise InputError(f"{source}: no header line found; add a header line naming the "
+                             "columns")
+        width = len(header)
+        fast = _cells_fast(text, delimiter, header_line, width)
+        keep, number = rows.append, line_numbers.append
+        for cells in ([] if fast is not None else reader):
+            n = len(cells)
+            if n != width:
+                if n > width:
+                    if any(c.strip() for c in cells[width:]):
+                        raise input_error(
+                            f"line has {n} fields but the header has {width}",
+                            source=source,
+                            row=reader.line_num,
+                            fix=f"quote text that contains the delimiter {delimiter!r} or fix "
+                                "the row",
+                        )
+                    cells = cells[:width]
+                else:
+                    cells = cells + [""] * (width - n)
+            keep(cells)
+            number(reader.line_num)
     except csv.Error as err:
         raise input_error(
             f"cannot be parsed as a table ({err})", source=source, row=reader.line_num,
             fix="check the quoting of that line",
         ) from err
-    if header is None:
-        raise InputError(f"{source}: no header line found; add a header line naming the columns")
     names = [_normalise_name(h) or f"unnamed_{k + 1}" for k, h in enumerate(header)]
     seen: set[str] = set()
     for name in names:
         if name in seen:
             raise input_error(
-                f"column name {name!r} appears twice in the header", source=source, row=1,
-                fix="give every column a unique name",
+                f"column name {name!r} appears twice in the header", source=source,
+                row=header_line, fix="give every column a unique name",
             )
         seen.add(name)
-    frame = pd.DataFrame(rows, columns=names, index=pd.Index(line_numbers, name="line"),
-                         dtype=object)
-    if len(frame) == 0:
+    if fast is not None and len(fast):
+        frame = fast
+        frame.columns = names
+    elif rows:
+        frame = pd.DataFrame(rows, columns=names, dtype=object)
+        frame.index = pd.Index(line_numbers, name="line", dtype=np.int64)
+    else:
+        frame = None
+    if frame is not None:
+        for name in names:
+            frame[name] = frame[name].astype(object).str.strip()
+        frame = frame[(frame != "").any(axis=1)]
+    else:
         frame = pd.DataFrame({n: pd.Series([], dtype=object) for n in names},
                              index=pd.Index([], name="line", dtype=np.int64))
     return _RawTable(frame, source, p, delimiter, delimiter == ";")
@@ -322,7 +362,11 @@ def _is_length_unit(text: str) -> bool:
 
 
 def _split_unit(name: str) -> tuple[str, str | None]:
-    """``"md_ft"`` -> ``("md", "ft")``; ``"md [m]"`` -> ``("md", "m")``; ``"md"`` -> ``("md", None)``."""
+    """Split a unit off a column name.
+
+    ``"md_ft"`` -> ``("md", "ft")``; ``"md [m]"`` -> ``("md", "m")``; ``"md"`` -> ``("md", None)``.
+    Only a suffix that is an exact length or angle alias counts, so ``dip_azimuth`` stays whole.
+    """
     m = re.fullmatch(r"(.+?)\s*[\(\[]\s*(.*?)\s*[\)\]]", name)
     if m:
         return m.group(1).strip(), m.group(2)
@@ -440,10 +484,6 @@ def _unit_from_side_file(path: Path) -> tuple[str, DepthUnit] | None:
                 text, source=f"{side}, {key}"
             )
     return None
-
-
-def _first_line(raw: _RawTable, mask: NDArray[np.bool_]) -> int:
-    return int(raw.frame.index[int(np.argmax(mask))])
 
 
 # --------------------------------------------------------------------------------------------
@@ -858,7 +898,8 @@ def read_manifest(
     ----------
     path : str or PathLike
         Table with ``well`` and ``las`` columns and optionally ``survey``, ``tops``, ``dip``
-        (file paths, relative to the manifest's folder), ``x``, ``y``, ``elevation`` (lengths:
+        (file paths, relative to the manifest's folder; ``dip`` may instead hold an attitude
+        ``dip/dip-azimuth`` such as ``8/070``, kept as text), ``x``, ``y``, ``elevation`` (lengths:
         with a unit suffix such as ``x_m`` or ``elevation_ft``, or bare with ``length_unit``) and
         ``depth_unit`` (per-well depth unit of its files).
     length_unit : DepthUnit or str, optional
@@ -1030,7 +1071,7 @@ def write_tops(tops: pd.DataFrame, path: PathLike, *,
 
 def write_survey(survey: pd.DataFrame, path: PathLike, *,
                  depth_unit: DepthUnit | str = DepthUnit.M) -> Path:
-    """Write a survey (``md_m, inc_deg, azi_deg`` [+ ``tvd_m, north_m, east_m``]) with unit suffixes.
+    """Write a survey with the length unit in the column names (``md_ft``, ``tvd_ft``, ...).
 
     Parameters
     ----------
