@@ -20,7 +20,8 @@ from .dip import BedDip
 from .errors import InputError
 from .results import FaultCut
 
-__all__ = ["FaultAssumptions", "measure_cut", "MIN_BED_COSINE", "MIN_FAULT_COSINE"]
+__all__ = ["FaultAssumptions", "FaultPlane", "measure_cut", "MIN_BED_COSINE",
+           "MIN_FAULT_COSINE"]
 
 #: |t·n| below this (the well within 2° of bedding): "missing" or "repeated" has no meaning
 #: (methods.md §3.4, degenerate cases). Common practice.
@@ -33,16 +34,42 @@ SENSITIVE_FAULT_ANGLE_DEG = 5.0
 
 
 @dataclass(frozen=True)
+class FaultPlane:
+    """A mapped fault plane: attitude and one point on it (x, y in metres; z as TVDSS [m]).
+
+    Used as a fault model: a cut is given the attitude of the plane that crosses the well
+    inside the cut's bracket (or the nearest plane within ``FaultAssumptions.max_distance_m``).
+    """
+
+    name: str
+    dip_deg: float
+    dip_azimuth_deg: float
+    x_m: float
+    y_m: float
+    tvdss_m: float
+
+    def signed_distance(self, points_xyz) -> np.ndarray:
+        """Distance of (x, y, tvdss) points from the plane, positive on the hanging-wall side."""
+        m = geometry.fault_normal_up(self.dip_deg, self.dip_azimuth_deg)
+        p = np.asarray(points_xyz, dtype=float).reshape(-1, 3)
+        return (p - np.array([self.x_m, self.y_m, self.tvdss_m])) @ m
+
+
+@dataclass(frozen=True)
 class FaultAssumptions:
     """What the user told us about the fault(s), shared by all cuts of a run.
 
     ``fault`` is a (dip, dip azimuth) pair when the attitude is known (``--fault 60/090``);
     ``pitch`` is (pitch, azimuth of the strike-line end it is measured from), e.g. (50, 200)
-    for ``--pitch 50/200``; it needs ``fault``.
+    for ``--pitch 50/200``; it needs ``fault``. ``planes`` is a fault model (mapped planes): a
+    cut takes the attitude of the plane that crosses the well inside its bracket, else of the
+    nearest plane within ``max_distance_m``, else ``fault``, else the stated assumption.
     """
 
     fault: tuple[float, float] | None = None
     pitch: tuple[float, float] | None = None
+    planes: tuple[FaultPlane, ...] = ()
+    max_distance_m: float = 150.0
 
     def __post_init__(self):
         if self.pitch is not None and self.fault is None:
@@ -51,6 +78,36 @@ class FaultAssumptions:
         if self.pitch is not None:
             # validates the named end against the fault's strike line
             slip.rhr_pitch(self.pitch[0], self.pitch[1], fault_dip_azimuth_deg=self.fault[1])
+        object.__setattr__(self, "planes", tuple(self.planes))
+
+    def plane_for(self, trajectory, md_top_m: float, md_base_m: float, md_m: float
+                  ) -> tuple[FaultPlane | None, float | None]:
+        """The model plane for a cut, and the MD where it crosses the well inside the bracket.
+
+        Returns (None, None) without a fault model or when no plane is near.
+        """
+        if not self.planes:
+            return None, None
+        elev = getattr(trajectory, "ref_elevation_m", None)
+        dz = float(elev) if elev is not None else 0.0
+        grid = np.linspace(md_top_m, md_base_m, max(3, int((md_base_m - md_top_m) / 0.5) + 1))
+        pos = trajectory.position(grid)
+        pos[:, 2] -= dz  # TVD -> TVDSS
+        best, best_md, best_d = None, None, np.inf
+        for plane in self.planes:
+            d = plane.signed_distance(pos)
+            change = np.flatnonzero(np.sign(d[:-1]) != np.sign(d[1:]))
+            if change.size:
+                k = int(change[np.argmin(np.abs(grid[change] - md_m))])
+                f = d[k] / (d[k] - d[k + 1])
+                cross = float(grid[k] + f * (grid[k + 1] - grid[k]))
+                if best_md is None or abs(cross - md_m) < abs(best_md - md_m):
+                    best, best_md, best_d = plane, cross, 0.0
+            elif best_md is None:
+                dmin = float(np.min(np.abs(d)))
+                if dmin < best_d and dmin <= self.max_distance_m:
+                    best, best_d = plane, dmin
+        return best, best_md
 
 
 def _crossing_text(c: int, given: bool) -> str:
@@ -103,6 +160,11 @@ def measure_cut(
     """
     notes = list(notes or [])
     md = float(md_m)
+    plane, plane_md = assumptions.plane_for(trajectory, float(md_top_m), float(md_base_m), md)
+    if plane_md is not None and plane_md != md:
+        md = plane_md
+        notes = [n for n in notes if not n.startswith("cut placed mid-bracket")]
+        notes.append(f"cut placed where fault-model plane {plane.name} crosses the well")
     pos = trajectory.position(np.array([md]))[0]
     tangent = trajectory.tangent(np.array([md]))[0]
     n = bed_dip.normals_at(np.array([md]), picks)[0]
@@ -116,9 +178,10 @@ def measure_cut(
                      f"in stratigraphic level is {ds:+.1f} m TST, but it is neither clearly "
                      "missing nor repeated section")
 
-    given = assumptions.fault is not None
+    attitude = (plane.dip_deg, plane.dip_azimuth_deg) if plane is not None else assumptions.fault
+    given = attitude is not None
     if given:
-        fdip, fazi = assumptions.fault
+        fdip, fazi = attitude
         crossing = int(geometry.crossing_direction(tangent, fault_dip_deg=fdip,
                                                    fault_dip_azimuth_deg=fazi,
                                                    min_abs_cos=MIN_FAULT_COSINE))
@@ -133,7 +196,7 @@ def measure_cut(
                          "crossing direction (and so the fault type) depends on the fault dip "
                          "given; check it")
         alpha = float(geometry.apparent_dip(bdip, bazi, fazi))
-        dip_source = "given"
+        dip_source = f"fault model {plane.name}" if plane is not None else "given"
     else:
         crossing = 1
         fault_type, reason = geometry.classify_fault(ds, r=r, crossing=1,
@@ -186,5 +249,6 @@ def measure_cut(
         expected_thickness_m=float(expected_thickness_m),
         observed_thickness_m=float(observed_thickness_m),
         notes="; ".join(notes),
+        fault_name=plane.name if plane is not None else "",
         extra={"r": r},
     )

@@ -81,6 +81,7 @@ class FaultCut:
     bed_dip_azimuth_deg: float = math.nan
     expected_thickness_m: float = math.nan
     observed_thickness_m: float = math.nan
+    fault_name: str = ""
     notes: str = ""
     extra: dict = field(default_factory=dict, compare=False)
 
