@@ -674,7 +674,7 @@ class Trajectory:
             with np.errstate(divide="ignore", invalid="ignore"):
                 step = f - g / slope
             bisect = ~np.isfinite(step) | (step <= lo) | (step >= hi)
-            f_new = np.where(bisect, 0.5 * (lo + hi), step)
+            f_new = np.where(g == 0, f, np.where(bisect, 0.5 * (lo + hi), step))
             done = np.abs(f_new - f) * dmd < 1e-10
             f = f_new
             if np.all(done | (g == 0)):
