@@ -52,6 +52,15 @@ def _add_detect(sub):
     p.add_argument("--pitch", metavar="PITCH/FROM",
                    help="slickenline pitch and the strike-line end it is measured from, "
                         "e.g. 50/200 (needs --fault)")
+    p.add_argument("--type-well", metavar="TYPE.las",
+                   help="the field's type well: its curves become the type log the well's "
+                        "curves are aligned to")
+    p.add_argument("--type-tops", metavar="TYPE_TOPS.csv", help="the type well's tops")
+    p.add_argument("--type-survey", metavar="SURVEY.csv",
+                   help="the type well's survey (vertical when omitted)")
+    p.add_argument("--curve", action="append", metavar="NAME[:WEIGHT]",
+                   help="curve to align (repeatable, optional weight, e.g. --curve GR:2 "
+                        "--curve RHOB); default GR when a type well is given")
     p.add_argument("--depth-unit", choices=["m", "ft", "usft"],
                    help="depth unit of input files that do not state one")
     p.add_argument("--output-unit", choices=["m", "ft"],
@@ -144,11 +153,13 @@ def _cmd_detect(args) -> int:
     from .detect import detect_files
     from .topcuts import TopsTolerance
 
-    df = detect_files(
+    result = detect_files(
         args.las, column=args.column, tops=args.tops, survey=args.survey, dip=args.dip,
         dip_table=args.dip_table, fault=args.fault, pitch=args.pitch,
-        depth_unit=args.depth_unit, output_unit=args.output_unit,
+        type_well=args.type_well, type_tops=args.type_tops, type_survey=args.type_survey,
+        curves=args.curve, depth_unit=args.depth_unit, output_unit=args.output_unit,
         tolerance=TopsTolerance(args.tolerance, args.tolerance_floor))
+    df = result.cuts
     _write_csv(df, args.out)
     suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
     print(_summarise(df, suffix), file=sys.stderr)

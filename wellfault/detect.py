@@ -11,35 +11,43 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from .column import ReferenceColumn
+from .curvecuts import CurveSettings, combine_evidence, find_cuts_from_curves
 from .dip import BedDip
 from .errors import InputError
-from .measure import FaultAssumptions
+from .measure import FaultAssumptions, FaultPlane
 from .results import FaultCut, cuts_to_frame
 from .topcuts import TopsTolerance, find_cuts_from_tops
 from .trajectory import Trajectory
 from .units import DepthUnit, parse_depth_unit
 
-__all__ = ["DetectionInputs", "find_fault_cuts", "load_inputs", "detect_files"]
+__all__ = ["WellAnalysis", "analyse_well", "find_fault_cuts", "detect_files",
+           "load_column"]
 
 
 @dataclass
-class DetectionInputs:
-    """Everything known about one well, in canonical units (metres, degrees)."""
+class WellAnalysis:
+    """Everything the detectors found in one well.
 
-    well: object  # wellfault.well.Well
-    column: ReferenceColumn
-    trajectory: Trajectory
-    tops: pd.DataFrame | None = None
-    bed_dip: BedDip = field(default_factory=lambda: BedDip.constant(0.0, 0.0))
-    type_well: object | None = None
-    output_unit: DepthUnit = DepthUnit.M
-    warnings: list[str] = field(default_factory=list)
+    ``cuts`` is the cut table (DataFrame, caller's unit); ``records`` the same cuts as
+    :class:`FaultCut` (metres); ``track`` the stratigraphic position track (``md_m, s_m, unit,
+    confidence``) when curves were aligned, else None; ``alignment`` the engine's result.
+    """
+
+    cuts: pd.DataFrame
+    records: list[FaultCut]
+    track: pd.DataFrame | None = None
+    alignment: object | None = None
+    trajectory: Trajectory | None = None
+    bed_dip: BedDip | None = None
+    assumptions: FaultAssumptions | None = None
+    notes: list[str] = field(default_factory=list)
 
 
-def find_fault_cuts(
+def analyse_well(
     well,
     column: ReferenceColumn,
     *,
@@ -51,10 +59,10 @@ def find_fault_cuts(
     tolerance: TopsTolerance = TopsTolerance(),
     planes: tuple | list = (),
     expected: dict | None = None,
+    curves: CurveSettings | None = None,
     unit: DepthUnit | str | None = None,
-    as_records: bool = False,
-):
-    """Find, classify and measure every fault cut in one well.
+) -> WellAnalysis:
+    """Find, classify and measure every fault cut in one well, with all the evidence given.
 
     Parameters
     ----------
@@ -79,14 +87,18 @@ def find_fault_cuts(
     expected : dict, optional
         Local expected intervals {(surface_above, surface_below): TST [m]} replacing the
         column's (field screening's neighbour-aware thickness).
+    curves : CurveSettings, optional
+        Align these curves to the column's type log (the column must carry one, e.g. built
+        with ``ReferenceColumn.from_type_well``); cuts found by both tops and curves are
+        merged (``method="both"``).
     unit : DepthUnit or str, optional
         Output length unit; default the well's own depth unit.
 
     Returns
     -------
-    DataFrame
-        The cut table (``wellfault.results.CUT_COLUMNS``); empty with the right columns when the
-        well shows no cut. With ``as_records=True`` a list of :class:`FaultCut` (metres).
+    WellAnalysis
+        The cut table (``wellfault.results.CUT_COLUMNS``; empty with the right columns when
+        the well shows no cut), the records in metres, and the stratigraphic track.
     """
     from .geometry import parse_attitude
 
@@ -101,7 +113,11 @@ def find_fault_cuts(
     if trajectory is None:
         trajectory = Trajectory.vertical(x0_m=_or0(well.x_m), y0_m=_or0(well.y_m),
                                          ref_elevation_m=well.ref_elevation_m)
+    if tops is None and curves is None:
+        raise InputError(f"well {well.name!r}: no evidence to work on; give tops, or curves "
+                         "with a type log in the column")
     cuts: list[FaultCut] = []
+    picks = None
     if tops is not None:
         picks = tops
         if "well" in tops.columns and tops["well"].nunique() > 1:
@@ -113,9 +129,33 @@ def find_fault_cuts(
         cuts += find_cuts_from_tops(picks, column, trajectory, bed_dip=bed_dip,
                                     well=str(well.name), assumptions=assumptions,
                                     tolerance=tolerance, expected=expected)
-    if as_records:
-        return cuts
-    return cuts_to_frame(cuts, unit if unit is not None else well.depth_unit)
+    track = alignment = None
+    if curves is not None:
+        res = find_cuts_from_curves(well, column, trajectory, bed_dip=bed_dip, settings=curves,
+                                    assumptions=assumptions, picks=picks)
+        cuts = combine_evidence(cuts, res.cuts)
+        track, alignment = res.track, res.alignment
+    frame = cuts_to_frame(cuts, unit if unit is not None else well.depth_unit)
+    return WellAnalysis(frame, cuts, track, alignment, trajectory, bed_dip, assumptions)
+
+
+def find_fault_cuts(well, column: ReferenceColumn, **kwargs) -> pd.DataFrame:
+    """The cut table of one well: :func:`analyse_well` (same arguments) ``.cuts``.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> from wellfault import ReferenceColumn, find_fault_cuts
+    >>> from wellfault.well import Well
+    >>> col = ReferenceColumn.from_table(pd.DataFrame(
+    ...     {"surface": ["A", "B", "C"], "thickness_m": [30.0, 40.0, 50.0]}))
+    >>> well = Well("W-1", pd.DataFrame(index=pd.Index([900.0, 1200.0], name="md_m")), "m")
+    >>> tops = pd.DataFrame({"surface": ["A", "C"], "md_m": [1000.0, 1045.0]})
+    >>> find_fault_cuts(well, col, tops=tops)[["md_m", "section", "tst_m"]]
+         md_m  section  tst_m
+    0  1022.5  missing   25.0
+    """
+    return analyse_well(well, column, **kwargs).cuts
 
 
 def _or0(v):
@@ -128,6 +168,55 @@ def _parse_pitch_text(text: str) -> tuple[float, float]:
     return parse_pitch(text)
 
 
+def load_column(
+    *,
+    column: str | Path | None = None,
+    type_well: str | Path | None = None,
+    type_tops: str | Path | None = None,
+    type_survey: str | Path | None = None,
+    bed_dip: BedDip | None = None,
+    depth_unit: DepthUnit | None = None,
+) -> ReferenceColumn:
+    """The reference column from a table, from a type well, or both.
+
+    From a type well (its LAS, tops and survey; bed dip as for the wells) the column carries the
+    type-log curves the curve evidence needs. Given both, the type well's surfaces are used and
+    the table's unconformity flags are copied onto them.
+    """
+    from .io import read_column_table, read_las, read_survey, read_tops
+
+    table = read_column_table(column, depth_unit=depth_unit) if column is not None else None
+    if type_well is None:
+        if type_tops is not None or type_survey is not None:
+            raise InputError("--type-tops/--type-survey need --type-well TYPE.las")
+        if table is None:
+            raise InputError("no reference column: give --column COLUMN.csv, or a type well "
+                             "(--type-well TYPE.las --type-tops TYPE_TOPS.csv)")
+        return ReferenceColumn.from_table(table, source=column)
+    if type_tops is None:
+        raise InputError("a type well needs its tops to place the surfaces: give "
+                         "--type-tops TYPE_TOPS.csv")
+    tw = read_las(type_well, depth_unit=depth_unit)
+    ttops = read_tops(type_tops, depth_unit=depth_unit, well=tw.name)
+    ttraj = None
+    if type_survey is not None:
+        ttraj = Trajectory.from_survey(read_survey(type_survey, depth_unit=depth_unit),
+                                       x0_m=_or0(tw.x_m), y0_m=_or0(tw.y_m),
+                                       ref_elevation_m=tw.ref_elevation_m, name=tw.name,
+                                       source=str(type_survey))
+    bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
+    if ttraj is None:
+        ttraj = Trajectory.vertical(x0_m=_or0(tw.x_m), y0_m=_or0(tw.y_m),
+                                    ref_elevation_m=tw.ref_elevation_m)
+    first_md = float(ttops["md_m"].min())
+    dip = tuple(float(v[0]) for v in bed_dip.attitude_at(np.array([first_md]), ttops))
+    unconformities = ()
+    if table is not None:
+        unconformities = tuple(table.loc[table["unconformity"].astype(bool), "surface"])
+    return ReferenceColumn.from_type_well(tw, ttops, ttraj, dip,
+                                          unconformities=unconformities)
+
+
 def detect_files(
     las: str | Path,
     *,
@@ -138,24 +227,23 @@ def detect_files(
     dip_table: str | Path | None = None,
     fault: str | None = None,
     pitch: str | None = None,
+    type_well: str | Path | None = None,
+    type_tops: str | Path | None = None,
+    type_survey: str | Path | None = None,
+    curves: list[str] | None = None,
     depth_unit: str | None = None,
     output_unit: str | None = None,
     tolerance: TopsTolerance = TopsTolerance(),
-) -> pd.DataFrame:
-    """Read a well's files and return its cut table (what ``wellfault detect`` does)."""
-    from .io import read_column_table, read_dip_table, read_las, read_survey, read_tops
+) -> WellAnalysis:
+    """Read a well's files and analyse it (what ``wellfault detect`` does).
+
+    Curve evidence runs when a type well is given (``curves`` defaults to GR then); tops
+    evidence when ``tops`` is given; both are combined.
+    """
+    from .io import read_dip_table, read_las, read_survey, read_tops
 
     unit_given = parse_depth_unit(depth_unit) if depth_unit else None
     well = read_las(las, depth_unit=unit_given)
-    if column is None:
-        raise InputError("no reference column: give --column COLUMN.csv")
-    col = ReferenceColumn.from_table(read_column_table(column, depth_unit=unit_given))
-    traj = None
-    if survey is not None:
-        traj = Trajectory.from_survey(read_survey(survey, depth_unit=unit_given),
-                                      x0_m=_or0(well.x_m), y0_m=_or0(well.y_m),
-                                      ref_elevation_m=well.ref_elevation_m, name=well.name,
-                                      source=str(survey))
     if dip is not None and dip_table is not None:
         raise InputError("give either --dip or --dip-table, not both")
     bed = BedDip.parse(dip) if dip is not None else None
@@ -163,10 +251,24 @@ def detect_files(
         t = read_dip_table(dip_table, depth_unit=unit_given)
         bed = BedDip.from_md_table(t, source=dip_table) if "md_m" in t.columns else \
             BedDip.per_surface(t, source=dip_table)
+    col = load_column(column=column, type_well=type_well, type_tops=type_tops,
+                      type_survey=type_survey, bed_dip=bed, depth_unit=unit_given)
+    traj = None
+    if survey is not None:
+        traj = Trajectory.from_survey(read_survey(survey, depth_unit=unit_given),
+                                      x0_m=_or0(well.x_m), y0_m=_or0(well.y_m),
+                                      ref_elevation_m=well.ref_elevation_m, name=well.name,
+                                      source=str(survey))
     tops_df = read_tops(tops, depth_unit=unit_given, well=well.name) if tops is not None else None
-    if tops_df is None:
-        raise InputError("no evidence to work on: give --tops TOPS.csv (log-curve evidence "
-                         "needs --type-well and --type-tops)")
+    settings = None
+    if curves or type_well is not None:
+        if col.type_log is None:
+            raise InputError("--curve needs a type log: give --type-well TYPE.las and "
+                             "--type-tops TYPE_TOPS.csv")
+        settings = CurveSettings.make(curves or ["GR"])
+    if tops_df is None and settings is None:
+        raise InputError("no evidence to work on: give --tops TOPS.csv, or a type well "
+                         "(--type-well TYPE.las --type-tops TYPE_TOPS.csv) for the curves")
     out_unit = parse_depth_unit(output_unit) if output_unit else well.depth_unit
-    return find_fault_cuts(well, col, tops=tops_df, trajectory=traj, bed_dip=bed, fault=fault,
-                           pitch=pitch, tolerance=tolerance, unit=out_unit)
+    return analyse_well(well, col, tops=tops_df, trajectory=traj, bed_dip=bed, fault=fault,
+                        pitch=pitch, tolerance=tolerance, curves=settings, unit=out_unit)
