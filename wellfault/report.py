@@ -1,0 +1,654 @@
+"""Self-contained HTML reports: one file per well or per field, to open in any browser.
+
+A report holds the cut table (readable, units in the column names), the figures to check each
+cut (PNG images embedded as base64 data, so the file needs no other file and no network), the
+assumptions the numbers rest on (bed dip, fault dip given or assumed, thickness tolerance), the
+errors met on the way and the caution text. Files are written atomically (a temporary file in
+the same folder, then :func:`os.replace`), so a reader never sees half a report.
+
+Entry points
+------------
+:func:`write_well_report` (``wellfault detect --report PATH``) and :func:`write_field_report`
+(``wellfault screen --report PATH``); :func:`well_report` and :func:`field_report` return the
+HTML text without writing it.
+"""
+
+from __future__ import annotations
+
+import base64
+import datetime as _dt
+import html
+import io
+import math
+import os
+import tempfile
+from collections.abc import Mapping, Sequence
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from . import CAUTION, __version__
+from .errors import InputError
+
+__all__ = ["well_report", "write_well_report", "field_report", "write_field_report",
+           "cut_table_html", "error_table_html", "write_atomic", "PROGRESS_MIN_WELLS"]
+
+#: Progress bars appear when a report draws figures for at least this many wells.
+PROGRESS_MIN_WELLS = 20
+
+_CSS = """
+:root { --ink:#2f3640; --muted:#69707a; --line:#d9dde2; --bg:#fbfaf7; --missing:#c4622d;
+        --repeated:#2b6a99; --undet:#7d7d7d; --accent:#4d7a66; }
+* { box-sizing: border-box; }
+body { font-family: "DejaVu Sans", "Segoe UI", Helvetica, Arial, sans-serif; color: var(--ink);
+       background: var(--bg); margin: 0; line-height: 1.45; }
+main { max-width: 1380px; margin: 0 auto; padding: 1.2rem 1.6rem 3rem; }
+h1 { font-size: 1.55rem; margin: .4rem 0 .2rem; }
+h2 { font-size: 1.2rem; margin: 2rem 0 .6rem; border-bottom: 2px solid var(--line);
+     padding-bottom: .2rem; }
+h3 { font-size: 1.02rem; margin: 1.2rem 0 .4rem; }
+p.sub { color: var(--muted); margin: 0 0 1rem; }
+.caution { border-left: 5px solid var(--missing); background: #fff4ec; padding: .7rem 1rem;
+           margin: 1rem 0; font-size: .93rem; }
+.summary { display: flex; flex-wrap: wrap; gap: .7rem; margin: .8rem 0; }
+.summary div { background: white; border: 1px solid var(--line); border-radius: 6px;
+               padding: .45rem .8rem; min-width: 8.5rem; }
+.summary b { display: block; font-size: 1.3rem; }
+table { border-collapse: collapse; font-size: .84rem; background: white; margin: .4rem 0 1rem; }
+th, td { border: 1px solid var(--line); padding: .28rem .5rem; text-align: left;
+         vertical-align: top; }
+th { background: #eef1ee; font-weight: 600; }
+td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
+tr:nth-child(even) td { background: #fafbfa; }
+.wide { overflow-x: auto; max-width: 100%; }
+.chip { display: inline-block; padding: 0 .45rem; border-radius: 9px; color: white;
+        font-size: .8rem; font-weight: 600; }
+.chip.missing { background: var(--missing); }
+.chip.repeated { background: var(--repeated); }
+.chip.undetermined { background: var(--undet); }
+figure { margin: 1rem 0 1.6rem; background: white; border: 1px solid var(--line);
+         border-radius: 6px; padding: .6rem; }
+figure img { max-width: 100%; height: auto; display: block; margin: 0 auto; }
+figcaption { color: var(--muted); font-size: .86rem; margin-top: .4rem; }
+dl.assume { display: grid; grid-template-columns: max-content 1fr; gap: .25rem 1rem;
+            background: white; border: 1px solid var(--line); border-radius: 6px;
+            padding: .7rem 1rem; }
+dl.assume dt { font-weight: 600; }
+dl.assume dd { margin: 0; }
+details { margin: .5rem 0 1rem; }
+summary { cursor: pointer; color: var(--accent); font-weight: 600; }
+.ok { color: var(--accent); font-weight: 600; }
+.nw { white-space: nowrap; }
+ul.notes { font-size: .86rem; padding-left: 1.2rem; }
+td small { color: var(--muted); }
+table.cuts { font-size: .8rem; }
+table.cuts td { padding: .25rem .4rem; }
+footer { color: var(--muted); font-size: .8rem; margin-top: 2.5rem; border-top: 1px solid
+         var(--line); padding-top: .6rem; }
+"""
+
+
+# ------------------------------------------------------------------------------ utilities
+def write_atomic(path: str | os.PathLike, text: str) -> Path:
+    """Write ``text`` to ``path`` atomically: a temporary file beside it, then ``os.replace``.
+
+    The folder must exist. An existing file keeps its permissions; a new one gets 0644 less the
+    process umask. The temporary file is removed if anything fails.
+    """
+    path = Path(path)
+    folder = path.parent if str(path.parent) else Path(".")
+    if not folder.is_dir():
+        raise InputError(f"cannot write the report {str(path)!r}: folder {str(folder)!r} does "
+                         "not exist; create it or choose another path")
+    if path.is_dir():
+        raise InputError(f"cannot write the report {str(path)!r}: it is a folder; give a file "
+                         "name such as report.html")
+    if path.exists():
+        mode = path.stat().st_mode & 0o777
+    else:
+        umask = os.umask(0)
+        os.umask(umask)
+        mode = 0o644 & ~umask
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
+            fh.write(text)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.chmod(tmp, mode)
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+    return path
+
+
+def _esc(v) -> str:
+    return html.escape("" if v is None else str(v), quote=True)
+
+
+def _figure_html(fig, caption: str, alt: str, *, dpi: int = 96) -> str:
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=dpi, facecolor="white")
+    data = base64.b64encode(buf.getvalue()).decode("ascii")
+    return (f'<figure><img alt="{_esc(alt)}" src="data:image/png;base64,{data}">'
+            f"<figcaption>{_esc(caption)}</figcaption></figure>")
+
+
+def _figure_or_error(make, caption: str, alt: str, problems: list[str]) -> str:
+    """Draw a figure; a failure goes into ``problems`` (and the report) instead of stopping."""
+    try:
+        fig = make()
+    except Exception as exc:  # noqa: BLE001 - a failed figure must not lose the report
+        problems.append(f"{alt}: figure not drawn ({type(exc).__name__}: {exc})")
+        return f'<p class="sub">{_esc(alt)}: figure not drawn: {_esc(exc)}</p>'
+    return _figure_html(fig, caption, alt)
+
+
+def _unit_of(cuts: pd.DataFrame) -> str:
+    for u in ("m", "ft", "usft"):
+        if f"md_{u}" in cuts.columns:
+            return u
+    return "m"
+
+
+def _fmt(v, nd=1) -> str:
+    if v is None:
+        return ""
+    if isinstance(v, (float, np.floating)):
+        if not math.isfinite(float(v)):
+            return ""
+        return f"{float(v):,.{nd}f}"
+    return str(v)
+
+
+def _chip(section) -> str:
+    sec = str(section)
+    cls = sec if sec in ("missing", "repeated") else "undetermined"
+    return f'<span class="chip {cls}">{_esc(sec)}</span>'
+
+
+def _table(headers: Sequence[str], rows: Sequence[Sequence[tuple[str, bool]]],
+           *, cls: str = "") -> str:
+    """HTML table from already-escaped cells ``(html, numeric)``."""
+    out = [f'<div class="wide"><table class="{cls}"><thead><tr>']
+    out += [f"<th>{_esc(h)}</th>" for h in headers]
+    out.append("</tr></thead><tbody>")
+    for r in rows:
+        out.append("<tr>" + "".join(f'<td class="num">{c}</td>' if num else f"<td>{c}</td>"
+                                    for c, num in r) + "</tr>")
+    out.append("</tbody></table></div>")
+    return "".join(out)
+
+
+def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True) -> str:
+    """The cut table as readable HTML: one row per cut, units in the column names.
+
+    The headline table shows what a geologist checks first; with ``full`` every column of the
+    cut table follows in a collapsible section, as the program wrote it.
+    """
+    if cuts is None or len(cuts) == 0:
+        return '<p class="ok">No fault cut found.</p>'
+    u = _unit_of(cuts)
+    lu = "ft" if u in ("ft", "usft") else "m"
+
+    def col(row, stem):
+        return row.get(f"{stem}_{u}", np.nan)
+
+    headers = ["well", "evidence", f"MD [{lu}]", f"bracket MD [{lu}]", f"TVDSS [{lu}]",
+               "section", "fault type", f"TST [{lu}]", f"TVT [{lu}]",
+               f"vert. separation [{lu}]", f"throw [{lu}]", f"heave [{lu}]",
+               "fault dip/azimuth [deg]", "crossing", "surfaces above / below the cut",
+               "confidence [0-1]"]
+    rows = []
+    notes = []
+    for k, row in enumerate(cuts.to_dict("records"), start=1):
+        fd, fa = row.get("fault_dip_deg", np.nan), row.get("fault_dip_azimuth_deg", np.nan)
+        dip_txt = (f"{fd:.0f}/{fa:03.0f}" if isinstance(fd, (int, float)) and math.isfinite(fd)
+                   and isinstance(fa, (int, float)) and math.isfinite(fa) else "")
+        src = str(row.get("fault_dip_source", "") or "")
+        rows.append([
+            (f'<span class="nw">{_esc(row.get("well", ""))}</span>', False),
+            (_esc(row.get("method", "")), False),
+            (_fmt(col(row, "md")), True),
+            (f"{_fmt(col(row, 'md_top'))} \u2013 {_fmt(col(row, 'md_base'))}", True),
+            (_fmt(col(row, "tvdss")), True), (_chip(row.get("section", "")), False),
+            (_esc(row.get("fault_type", "")), False), (_fmt(col(row, "tst")), True),
+            (_fmt(col(row, "tvt")), True), (_fmt(col(row, "vertical_separation")), True),
+            (_fmt(col(row, "throw")), True), (_fmt(col(row, "heave")), True),
+            (f'<span class="nw">{_esc(dip_txt)}</span><br><small>{_esc(src)}</small>', False),
+            (_esc(str(row.get("crossing", "")).replace(" -> ", " \u2192 ")), False),
+            (f"{_esc(row.get('surface_above', ''))} / {_esc(row.get('surface_below', ''))}",
+             False),
+            (_fmt(row.get("confidence", np.nan), 2), True),
+        ])
+        note = str(row.get("notes", "") or "").strip()
+        if note and note.lower() != "nan":
+            notes.append(f"<li><b>{_esc(row.get('well', ''))}, MD {_fmt(col(row, 'md'))} "
+                         f"{lu}</b>: {_esc(note)}</li>")
+    out = _table(headers, rows, cls="cuts")
+    if notes:
+        out += '<h3>Notes on the cuts</h3><ul class="notes">' + "".join(notes) + "</ul>"
+    if full:
+        body = cuts.round(3).to_html(index=False, escape=True, na_rep="", border=0,
+                                     classes="full")
+        out += (f"<details><summary>Every column of the cut table ({len(cuts.columns)} "
+                f"columns, as written to CSV)</summary><div class=\"wide\">{body}</div>"
+                "</details>")
+    return out
+
+
+def _errors_frame(errors) -> pd.DataFrame:
+    if errors is None:
+        return pd.DataFrame(columns=["message"])
+    if isinstance(errors, pd.DataFrame):
+        return errors.reset_index(drop=True)
+    rows = []
+    for e in errors:
+        if isinstance(e, Mapping):
+            rows.append(dict(e))
+        elif isinstance(e, BaseException):
+            rows.append({"error_type": type(e).__name__, "message": str(e)})
+        else:
+            rows.append({"message": str(e)})
+    return pd.DataFrame(rows)
+
+
+def error_table_html(errors) -> str:
+    """The errors met, as an HTML table (a screening error table, or messages)."""
+    df = _errors_frame(errors)
+    if len(df) == 0:
+        return '<p class="ok">No error met.</p>'
+    headers = list(df.columns)
+    rows = [[(_esc(v if not (isinstance(v, float) and math.isnan(v)) else ""), False)
+             for v in r] for r in df.itertuples(index=False)]
+    return _table(headers, rows, cls="errors")
+
+
+def _assumptions_html(items: list[tuple[str, str]], extra) -> str:
+    if extra:
+        if isinstance(extra, str):
+            items = items + [("stated by the caller", extra)]
+        elif isinstance(extra, Mapping):
+            items = items + [(str(k), str(v)) for k, v in extra.items()]
+        else:
+            items = items + [("stated by the caller", str(v)) for v in extra]
+    body = "".join(f"<dt>{_esc(k)}</dt><dd>{_esc(v)}</dd>" for k, v in items)
+    return f'<dl class="assume">{body}</dl>'
+
+
+def _fault_dip_text(cuts: pd.DataFrame) -> str:
+    if cuts is None or len(cuts) == 0 or "fault_dip_source" not in cuts.columns:
+        return "no cut, so no fault dip was used"
+    parts = []
+    for src, g in cuts.groupby(cuts["fault_dip_source"].astype(str), sort=False):
+        dips = sorted({f"{d:.0f}/{a:03.0f}" for d, a in zip(g.get("fault_dip_deg", []),
+                                                            g.get("fault_dip_azimuth_deg", []))
+                       if isinstance(d, (int, float)) and math.isfinite(d)
+                       and isinstance(a, (int, float)) and math.isfinite(a)})
+        parts.append(f"{len(g)} cut{'s' if len(g) != 1 else ''}: {src}"
+                     + (f" ({', '.join(dips)})" if dips else ""))
+    return "; ".join(parts)
+
+
+def _tolerance_text(tolerance) -> str:
+    if tolerance is None:
+        return ("not passed to the report; tops evidence defaults are 15 % of the expected "
+                "interval plus a 2 m floor, picks uncertain by 1 m")
+    rel = getattr(tolerance, "relative", None)
+    floor = getattr(tolerance, "floor_m", None)
+    pick = getattr(tolerance, "pick_uncertainty_m", None)
+    if rel is None:
+        return str(tolerance)
+    txt = f"{100 * rel:g} % of the expected interval plus a {floor:g} m floor"
+    if pick is not None:
+        txt += f"; picks uncertain by {pick:g} m (brackets widened by it)"
+    return txt
+
+
+def _bed_dip_text(bed_dip) -> str:
+    if bed_dip is None:
+        return "none given: flat beds assumed"
+    if isinstance(bed_dip, str):
+        return f"{bed_dip} (dip/dip azimuth, degrees)"
+    if hasattr(bed_dip, "describe"):
+        return f"{bed_dip.describe()} (dip/dip azimuth, degrees)"
+    return str(bed_dip)
+
+
+def _trajectory_text(trajectory) -> str:
+    if trajectory is None:
+        return "no survey: vertical well below the surface location"
+    st = getattr(trajectory, "stations", None)
+    if st is None or len(st) == 0:
+        return str(trajectory)
+    inc = float(np.nanmax(st["inc_deg"]))
+    if inc == 0.0:
+        return "vertical (no deviation)"
+    return (f"{len(st)} survey stations, MD {st['md_m'].min():.0f}-{st['md_m'].max():.0f} m, "
+            f"inclination up to {inc:.1f} deg (minimum curvature)")
+
+
+def _page(title: str, subtitle: str, body: str) -> str:
+    now = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    return (
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
+        "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; "
+        "img-src data:; style-src 'unsafe-inline'\">"
+        "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">"
+        f"<meta name=\"generator\" content=\"wellfault {_esc(__version__)}\">"
+        f"<title>{_esc(title)}</title><style>{_CSS}</style></head><body><main>"
+        f"<h1>{_esc(title)}</h1><p class=\"sub\">{_esc(subtitle)}</p>"
+        f"<div class=\"caution\" id=\"caution\">{_esc(CAUTION)}</div>"
+        f"{body}"
+        f"<footer>Written by wellfault {_esc(__version__)} on {now}. This file is complete in "
+        "itself: figures are embedded, nothing is fetched from a network. "
+        f"{_esc(CAUTION)}</footer></main></body></html>\n")
+
+
+def _summary(cards: Sequence[tuple[str, object]]) -> str:
+    return '<div class="summary">' + "".join(
+        f"<div><b>{_esc(v)}</b>{_esc(k)}</div>" for k, v in cards) + "</div>"
+
+
+# ------------------------------------------------------------------------------ well report
+def well_report(*, well, column, cuts_df: pd.DataFrame | None, trajectory=None, bed_dip=None,
+                tops: pd.DataFrame | None = None, track: pd.DataFrame | None = None,
+                assumptions=None, errors=None, tolerance=None, curve: str = "GR",
+                title: str | None = None) -> str:
+    """HTML text of one well's report (see :func:`write_well_report`)."""
+    from . import plots
+    from .track import track_from_tops
+
+    name = str(getattr(well, "name", "well"))
+    cuts = cuts_df if cuts_df is not None else pd.DataFrame()
+    problems: list[str] = []
+    if track is None and tops is not None:
+        try:
+            md = None
+            curves = getattr(well, "curves", None)
+            if curves is not None and len(curves) > 1:
+                md = curves.index.to_numpy(float)
+                md = md[:: max(1, len(md) // 4000)]
+            track = track_from_tops(tops, column, trajectory, bed_dip, cuts, md_m=md,
+                                    well=name if "well" in tops.columns else None)
+        except Exception as exc:  # noqa: BLE001 - report what failed, keep the rest
+            problems.append(f"stratigraphic position track not built from the tops "
+                            f"({type(exc).__name__}: {exc})")
+    n_missing = int((cuts.get("section", pd.Series(dtype=str)) == "missing").sum())
+    n_repeated = int((cuts.get("section", pd.Series(dtype=str)) == "repeated").sum())
+    u = _unit_of(cuts) if len(cuts.columns) else getattr(getattr(well, "depth_unit", None),
+                                                          "value", "m")
+    body = [_summary([("cuts", len(cuts)), ("missing section", n_missing),
+                      ("repeated section", n_repeated),
+                      ("errors met", len(_errors_frame(errors)) + len(problems))])]
+    body.append("<h2 id=\"cuts\">Fault cuts</h2>")
+    body.append(f'<p class="sub">Lengths in {_esc(u)}; the bracket is the MD interval in which '
+                "the evidence places the cut. Missing section: strata cut out by the fault; "
+                "repeated: strata drilled twice. The figures are drawn in metres.</p>")
+    body.append(cut_table_html(cuts))
+    body.append("<h2 id=\"figures\">Figures</h2>")
+    body.append(_figure_or_error(
+        lambda: plots.correlation_panel(well, column, track, cuts, curve=curve),
+        "The well's curve (left, against MD) beside the type log and the column (right, "
+        "against stratigraphic position s). Green tie lines join each surface in the well to "
+        "the same surface in the column; each cut's wedge points at the interval of the column "
+        "it removes (missing, orange) or repeats (repeated, blue).",
+        f"correlation panel of {name}", problems))
+    if track is not None:
+        body.append(_figure_or_error(
+            lambda: plots.strat_position_plot(track, cuts, column=column, well=name),
+            "Stratigraphic position s against MD: a fault is a step, an arrow from the position "
+            "above the cut to the position below. The right panel shows how firmly the evidence "
+            "places each depth.", f"stratigraphic position of {name}", problems))
+    else:
+        body.append('<p class="sub">No stratigraphic position track (no tops and none given): '
+                    "the position plot is left out.</p>")
+    body.append("<h2 id=\"assumptions\">Assumptions used</h2>")
+    methods = sorted(set(cuts["method"].astype(str))) if "method" in cuts.columns and len(cuts) \
+        else []
+    items = [
+        ("well", f"{name} ({getattr(well, 'source', '<memory>')}), depth unit "
+                 f"{getattr(getattr(well, 'depth_unit', None), 'value', '?')}, depth reference "
+                 f"{getattr(well, 'ref_name', '?')} at "
+                 + (f"{well.ref_elevation_m:g} m above sea level"
+                    if getattr(well, "ref_elevation_m", None) is not None
+                    else "unknown elevation")),
+        ("reference column", f"{len(column)} surfaces ({column.names[0]} to "
+                             f"{column.names[-1]}), "
+                             + ("with a type log" if column.type_log is not None
+                                else "without a type log")),
+        ("well path", _trajectory_text(trajectory)),
+        ("bed dip", _bed_dip_text(bed_dip)),
+        ("fault dip", _fault_dip_text(cuts)),
+        ("thickness tolerance", _tolerance_text(tolerance)),
+        ("evidence", (", ".join(methods) if methods else "none reported a cut")
+         + (f"; {len(tops)} tops" if tops is not None else "")),
+    ]
+    body.append(_assumptions_html(items, assumptions))
+    body.append("<h2 id=\"errors\">Errors met</h2>")
+    errs = _errors_frame(errors)
+    if problems:
+        errs = pd.concat([errs, pd.DataFrame({"message": problems})], ignore_index=True)
+    body.append(error_table_html(errs))
+    return _page(title or f"Fault cuts in well {name}",
+                 f"{len(cuts)} cut{'s' if len(cuts) != 1 else ''} found; report of one well",
+                 "".join(body))
+
+
+def write_well_report(path: str | os.PathLike, *, well, column, cuts_df: pd.DataFrame | None,
+                      trajectory=None, bed_dip=None, tops: pd.DataFrame | None = None,
+                      track: pd.DataFrame | None = None, assumptions=None, errors=None,
+                      tolerance=None, curve: str = "GR", title: str | None = None) -> Path:
+    """Write one well's self-contained HTML report to ``path`` (atomically) and return the path.
+
+    Parameters
+    ----------
+    path : path-like
+        The HTML file to write (its folder must exist; an existing file is replaced).
+    well : Well
+        The well read from its LAS file.
+    column : ReferenceColumn
+        The reference column (with a type log when one is known: the correlation panel then
+        shows it beside the well's curve).
+    cuts_df : DataFrame or None
+        The cut table ``find_fault_cuts`` returned (any length unit).
+    trajectory : Trajectory, optional
+        The well path (None: vertical).
+    bed_dip : BedDip or "dip/azimuth" text, optional
+        The bed attitude used.
+    tops : DataFrame, optional
+        The well's picks; with them the stratigraphic position track is built
+        (:func:`wellfault.track.track_from_tops`) when ``track`` is not given.
+    track : DataFrame, optional
+        The track from the curve engine, when it ran.
+    assumptions : str, mapping or list of str, optional
+        Further assumptions to state (e.g. ``{"fault": "60/090 given with --fault"}``).
+    errors : DataFrame, list of str/dict/exception, optional
+        Errors and warnings met, shown in the error table.
+    tolerance : TopsTolerance, optional
+        The thickness tolerance used.
+    curve : str
+        Curve for the correlation panel (default GR).
+    """
+    text = well_report(well=well, column=column, cuts_df=cuts_df, trajectory=trajectory,
+                       bed_dip=bed_dip, tops=tops, track=track, assumptions=assumptions,
+                       errors=errors, tolerance=tolerance, curve=curve, title=title)
+    return write_atomic(path, text)
+
+
+# ----------------------------------------------------------------------------- field report
+def _n_faults(faults) -> int:
+    if faults is None:
+        return 0
+    f = pd.DataFrame(faults)
+    for col in ("fault_id", "fault", "name", "fault_name"):
+        if col in f.columns:
+            return int(f[col].nunique())
+    return len(f)
+
+
+def _progress(iterable, total: int, progress: bool | None, desc: str):
+    show = progress if progress is not None else total >= PROGRESS_MIN_WELLS
+    if not show:
+        return iterable
+    from tqdm import tqdm  # a text bar: the report is written from scripts and commands
+
+    return tqdm(iterable, total=total, desc=desc, unit="well", leave=False)
+
+
+def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame | None = None,
+                 faults: pd.DataFrame | None = None, paths: Mapping | None = None,
+                 tracks: Mapping[str, pd.DataFrame] | None = None, column=None,
+                 assumptions=None, tolerance=None, bed_dip=None, tvdss_m: float | None = None,
+                 max_well_figures: int = 40, progress: bool | None = None,
+                 title: str | None = None) -> str:
+    """HTML text of a field's report (see :func:`write_field_report`)."""
+    from . import plots
+
+    c = cuts if cuts is not None else pd.DataFrame()
+    problems: list[str] = []
+    errs = _errors_frame(errors)
+    wl = pd.DataFrame(wells).copy() if wells is not None else None
+    if wl is not None and "well" not in wl.columns and "name" in wl.columns:
+        wl = wl.rename(columns={"name": "well"})
+    well_names: list[str] = []
+    if wl is not None and "well" in wl.columns:
+        well_names = [str(w) for w in wl["well"]]
+    for w in (c["well"].astype(str).unique() if "well" in c.columns and len(c) else []):
+        if w not in well_names:
+            well_names.append(w)
+    for w in (errs["well"].astype(str).unique() if "well" in errs.columns else []):
+        if w not in well_names:
+            well_names.append(w)
+    failed = set(errs["well"].astype(str)) if "well" in errs.columns else set()
+    sec = c["section"].astype(str) if "section" in c.columns else pd.Series(dtype=str)
+    with_cuts = set(c["well"].astype(str)) if "well" in c.columns else set()
+    body = [_summary([("wells", len(well_names)), ("wells with cuts", len(with_cuts)),
+                      ("cuts", len(c)), ("missing section", int((sec == "missing").sum())),
+                      ("repeated section", int((sec == "repeated").sum())),
+                      ("wells that failed", len(failed)),
+                      ("faults", _n_faults(faults))])]
+
+    body.append("<h2 id=\"map\">Map</h2>")
+    if wl is not None and {"well", "x_m", "y_m"} <= set(wl.columns):
+        body.append(_figure_or_error(
+            lambda: plots.field_map(wl, c, faults, paths=paths, tvdss_m=tvdss_m),
+            "Wells (open circles, deviated paths in plan), cut points (orange circles: missing "
+            "section; blue squares: repeated), posted with their vertical separation, and the "
+            "fault traces at one depth with ticks or triangles on the hanging wall.",
+            "field map", problems))
+    else:
+        body.append('<p class="sub">No well locations given (a table with well, x_m, y_m): '
+                    "the map is left out.</p>")
+    if faults is not None and len(faults) and len(c):
+        body.append(_figure_or_error(
+            lambda: plots.separation_along_strike(faults, c),
+            "Vertical separation of each cut against its distance along the strike of its "
+            "fault: separation should change smoothly along a fault; a cut far off its "
+            "neighbours deserves a second look.", "separation along strike", problems))
+        fdf = pd.DataFrame(faults)
+        body.append("<h3>Faults</h3>")
+        body.append(_table(list(fdf.columns),
+                           [[(_esc(_fmt(v)), isinstance(v, (int, float, np.floating)))
+                             for v in r] for r in fdf.itertuples(index=False)]))
+
+    body.append("<h2 id=\"cuts\">Fault cuts</h2>")
+    u = _unit_of(c) if len(c.columns) else "m"
+    body.append(f'<p class="sub">One row per cut in every well; lengths in {_esc(u)}.</p>')
+    body.append(cut_table_html(c))
+
+    body.append("<h2 id=\"wells\">Wells</h2>")
+    rows = []
+    counts = c.groupby(c["well"].astype(str))["section"].value_counts().unstack(fill_value=0) \
+        if len(c) and {"well", "section"} <= set(c.columns) else pd.DataFrame()
+    err_by_well = errs.groupby(errs["well"].astype(str)).size() if "well" in errs.columns \
+        else pd.Series(dtype=int)
+    for w in well_names:
+        nm = int(counts.loc[w].get("missing", 0)) if w in counts.index else 0
+        nr = int(counts.loc[w].get("repeated", 0)) if w in counts.index else 0
+        ne = int(err_by_well.get(w, 0))
+        status = "failed" if w in failed and w not in with_cuts else "ok"
+        rows.append([(_esc(w), False), (str(nm), True), (str(nr), True), (str(ne), True),
+                     (_esc(status), False)])
+    body.append(_table(["well", "cuts with missing section", "cuts with repeated section",
+                        "errors", "status"], rows))
+
+    if tracks:
+        names = [w for w in well_names if w in tracks and w in with_cuts][:max_well_figures]
+        body.append("<h3>Stratigraphic position of the wells with cuts</h3>")
+        if len([w for w in tracks if w in with_cuts]) > len(names):
+            body.append(f'<p class="sub">The first {len(names)} wells with cuts are drawn.</p>')
+        for w in _progress(names, len(names), progress, "report figures"):
+            body.append(_figure_or_error(
+                lambda w=w: plots.strat_position_plot(tracks[w], c, column=column, well=w),
+                f"{w}: stratigraphic position against MD; a fault is a step.",
+                f"stratigraphic position of {w}", problems))
+
+    body.append("<h2 id=\"assumptions\">Assumptions used</h2>")
+    methods = sorted(set(c["method"].astype(str))) if "method" in c.columns and len(c) else []
+    items = [("bed dip", _bed_dip_text(bed_dip) if bed_dip is not None else
+              ("per well, as given in the inputs" if not len(c) or "bed_dip_deg" not in c.columns
+               else "per well; at the cuts "
+               + ", ".join(sorted({f"{d:.0f}/{a:03.0f}" for d, a in
+                                   zip(c["bed_dip_deg"], c["bed_dip_azimuth_deg"])
+                                   if math.isfinite(d) and math.isfinite(a)})[:12]))),
+             ("fault dip", _fault_dip_text(c)),
+             ("thickness tolerance", _tolerance_text(tolerance)),
+             ("evidence", ", ".join(methods) if methods else "no cut reported")]
+    body.append(_assumptions_html(items, assumptions))
+    body.append("<h2 id=\"errors\">Errors met</h2>")
+    if problems:
+        errs = pd.concat([errs, pd.DataFrame({"message": problems})], ignore_index=True)
+    body.append(error_table_html(errs))
+    return _page(title or "Fault cuts in the field",
+                 f"{len(c)} cut{'s' if len(c) != 1 else ''} in {len(with_cuts)} of "
+                 f"{len(well_names)} wells; {len(failed)} well{'s' if len(failed) != 1 else ''} "
+                 "failed", "".join(body))
+
+
+def write_field_report(path: str | os.PathLike, *, cuts: pd.DataFrame | None, errors=None,
+                       wells: pd.DataFrame | None = None, faults: pd.DataFrame | None = None,
+                       paths: Mapping | None = None,
+                       tracks: Mapping[str, pd.DataFrame] | None = None, column=None,
+                       assumptions=None, tolerance=None, bed_dip=None,
+                       tvdss_m: float | None = None, max_well_figures: int = 40,
+                       progress: bool | None = None, title: str | None = None) -> Path:
+    """Write a field's self-contained HTML report to ``path`` (atomically) and return the path.
+
+    Parameters
+    ----------
+    path : path-like
+        The HTML file to write (its folder must exist).
+    cuts : DataFrame or None
+        The field's cut table (every well; any length unit).
+    errors : DataFrame or list, optional
+        The error table (``well, source, error_type, message``) or messages.
+    wells : DataFrame, optional
+        ``well, x_m, y_m`` of every well (the manifest will do): the map and the well list.
+    faults : DataFrame, optional
+        ``fault_id, strike_deg, dip_deg, dip_azimuth_deg, sense, x_m, y_m, tvdss_m``: fault
+        traces on the map and the separation-along-strike plot (cuts matched by the cut
+        table's ``fault_id`` or ``fault_name``).
+    paths : mapping well -> Trajectory or table, optional
+        Deviated well paths for the map.
+    tracks : mapping well -> track, optional
+        Stratigraphic position tracks: a position plot for each well with cuts (at most
+        ``max_well_figures``; a progress bar when there are ``PROGRESS_MIN_WELLS`` or more,
+        or as ``progress`` says).
+    column : ReferenceColumn, optional
+        For the unit bands of the position plots.
+    assumptions, tolerance, bed_dip : optional
+        What the numbers rest on (see :func:`write_well_report`).
+    tvdss_m : float, optional
+        Depth of the fault traces on the map (default the median depth of the cuts).
+    """
+    text = field_report(cuts=cuts, errors=errors, wells=wells, faults=faults, paths=paths,
+                        tracks=tracks, column=column, assumptions=assumptions,
+                        tolerance=tolerance, bed_dip=bed_dip, tvdss_m=tvdss_m,
+                        max_well_figures=max_well_figures, progress=progress, title=title)
+    return write_atomic(path, text)
