@@ -319,3 +319,19 @@ def test_bad_inputs_name_what_is_missing():
                         pd.DataFrame({"dip_deg": [60.0]}))
     with pytest.raises(InputError, match="empty"):
         plots.strat_position_plot(pd.DataFrame(columns=["md_m", "s_m", "unit", "confidence"]))
+
+
+def test_field_map_takes_paths_as_tables():
+    wells = pd.DataFrame({"well": ["A", "B"], "x_m": [0.0, 1000.0], "y_m": [0.0, 0.0]})
+    paths = {"A": pd.DataFrame({"east_m": [0.0, 100.0, 400.0], "north_m": [0.0, 50.0, 300.0]}),
+             "B": pd.DataFrame({"x_m": [1000.0, 900.0], "y_m": [0.0, -200.0]})}
+    cuts = pd.DataFrame({"well": ["A"], "x_m": [100.0], "y_m": [50.0], "tvdss_m": [900.0],
+                         "section": ["repeated"], "vertical_separation_m": [12.0],
+                         "confidence": [0.2]})
+    fig = plots.field_map(wells, cuts, paths=paths)
+    lines = plots.artists_with_gid(fig, "well-path")
+    assert len(lines) == 2
+    np.testing.assert_allclose(lines[0].get_xydata()[-1], [400.0, 300.0])
+    assert plots.count_cut_markers(fig, "repeated") == 1
+    words = " ".join(legend_texts(fig))
+    assert "confidence below" in words  # a weak cut is drawn open and the legend says so

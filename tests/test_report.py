@@ -11,6 +11,7 @@ import shutil
 import subprocess
 from html.parser import HTMLParser
 
+import numpy as np
 import pandas as pd
 import pytest
 from test_plots import FIELD, demo_faults, demo_field, demo_well, needs_field
@@ -278,3 +279,32 @@ def test_report_opens_in_a_headless_browser(vr2, tmp_path):
     img = mpimg.imread(shot)
     assert img.shape[0] >= 2000 and img.shape[1] >= 1200
     assert float(img[..., :3].std()) > 0.05  # not a blank page
+
+
+def test_field_report_scales_and_caps_its_tables():
+    import time
+
+    rng = np.random.default_rng(3)
+    n_wells, n_cuts = 3000, 800
+    wells = pd.DataFrame({"well": [f"W{i}" for i in range(n_wells)],
+                          "x_m": rng.uniform(0, 30000, n_wells),
+                          "y_m": rng.uniform(0, 30000, n_wells)})
+    pick = rng.integers(0, n_wells, n_cuts)
+    cuts = pd.DataFrame({"well": wells["well"].to_numpy()[pick], "method": "tops",
+                         "md_m": rng.uniform(1000, 3000, n_cuts),
+                         "x_m": wells["x_m"].to_numpy()[pick],
+                         "y_m": wells["y_m"].to_numpy()[pick],
+                         "tvdss_m": rng.uniform(1500, 2500, n_cuts),
+                         "section": rng.choice(["missing", "repeated"], n_cuts),
+                         "vertical_separation_m": rng.uniform(5, 100, n_cuts),
+                         "confidence": rng.uniform(0, 1, n_cuts)})
+    errors = pd.DataFrame({"well": [f"W{i}" for i in range(300)], "file": "x.las",
+                           "error_type": "InputError", "message": "bad"})
+    t0 = time.perf_counter()
+    text = field_report(cuts=cuts, errors=errors, wells=wells, max_table_rows=200)
+    assert time.perf_counter() - t0 < 60
+    s = scan(text)
+    assert s.rows["cuts"] == 200 and s.rows["errors"] == 200
+    assert "The first 200 of 800 cuts are shown" in text
+    assert "200 of 3,000 wells listed" in text
+    assert len(s.imgs) == 1  # the map

@@ -794,8 +794,11 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
         ax.plot(xy[-1, 0], xy[-1, 1], marker="o", ms=2.5, color=INK, zorder=2)
         xs.append(xy[:, 0])
         ys.append(xy[:, 1])
-    ax.scatter(w["x_m"], w["y_m"], s=36, facecolor="white", edgecolor=INK, lw=1.2, zorder=4,
-               gid="well-head")
+    # symbols shrink as the field fills up, so that a map of thousands of wells stays legible
+    head_size = float(np.clip(36.0 * math.sqrt(80.0 / max(len(w), 1)), 4.0, 36.0))
+    cut_size = float(np.clip(70.0 * math.sqrt(60.0 / max(len(c), 1)), 12.0, 70.0))
+    ax.scatter(w["x_m"], w["y_m"], s=head_size, facecolor="white", edgecolor=INK,
+               lw=1.2 if head_size > 20 else 0.6, zorder=2.5, gid="well-head")
     if label_wells:
         labels += [dict(x=r.x_m, y=r.y_m, text=str(r.well), size=8.5)
                    for r in w.itertuples(index=False)]
@@ -816,8 +819,9 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
             for sel, face, edge in ((~weak, st["colour"], "white"), (weak, "white", st["colour"])):
                 if sel.any():
                     ax.scatter(g["x_m"].to_numpy(float)[sel], g["y_m"].to_numpy(float)[sel],
-                               marker=st["marker"], s=70, facecolor=face, edgecolor=edge,
-                               lw=0.9 if face != "white" else 1.8, zorder=5, gid=f"cut-{sec}")
+                               marker=st["marker"], s=cut_size, facecolor=face,
+                               edgecolor=edge, lw=(0.9 if face != "white" else 1.8)
+                               * math.sqrt(cut_size / 70.0), zorder=5, gid=f"cut-{sec}")
             obstacles += list(zip(g["x_m"].to_numpy(float), g["y_m"].to_numpy(float)))
             if "vertical_separation_m" in g.columns and len(c) <= 300:
                 for r in g.itertuples(index=False):
@@ -854,23 +858,23 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
             continue
         a, b = rng
         pts = np.array([p + a * u, p + b * u])
-        ax.plot(pts[:, 0], pts[:, 1], color=FAULT, lw=2.0, zorder=3, gid="fault-trace")
+        ax.plot(pts[:, 0], pts[:, 1], color=FAULT, lw=2.0, zorder=4, gid="fault-trace")
         n_traces += 1
         beta = math.radians(r["dip_azimuth_deg"])
         dvec = np.array([math.sin(beta), math.cos(beta)])
         reverse = "rev" in str(r.get("sense", "")).lower() or "thrust" in \
             str(r.get("sense", "")).lower()
         n_ticks = max(3, int((b - a) / (span / 7.0)))
-        tick_len = 0.018 * span
+        tick_len = 0.022 * span
         for tt in np.linspace(a, b, n_ticks + 2)[1:-1]:
             q = p + tt * u
             if reverse:
                 tri = np.array([q - 0.6 * tick_len * u, q + 0.6 * tick_len * u,
                                 q + 1.1 * tick_len * dvec])
-                ax.fill(tri[:, 0], tri[:, 1], color=FAULT, lw=0, zorder=3)
+                ax.fill(tri[:, 0], tri[:, 1], color=FAULT, lw=0, zorder=4)
             else:
                 e = q + tick_len * dvec
-                ax.plot([q[0], e[0]], [q[1], e[1]], color=FAULT, lw=1.6, zorder=3)
+                ax.plot([q[0], e[0]], [q[1], e[1]], color=FAULT, lw=1.6, zorder=4)
         # name near one end of the trace, on the footwall side
         lab = p + (a + 0.05 * (b - a)) * u - 0.035 * span * dvec
         fault_labels.append((lab, str(r["fault_id"])))
@@ -910,8 +914,9 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
         handles.append(Line2D([], [], ls="", marker="o", mfc="white", mec="#8a8f96", mew=1.8,
                               ms=8, label=f"open symbol: cut with confidence below "
                                           f"{LOW_CONFIDENCE:g}"))
-    handles.append(Line2D([], [], ls="", label="posted: vertical separation [m], "
-                                                "\u2212 missing, + repeated"))
+    if any(lab.get("weight") == "bold" for lab in labels):
+        handles.append(Line2D([], [], ls="", label="posted: vertical separation [m], "
+                                                    "\u2212 missing, + repeated"))
     fig.legend(handles=handles, loc="lower center", ncol=2, frameon=False, fontsize=8.5,
                bbox_to_anchor=(0.5, 0.005))
     n = len(c)

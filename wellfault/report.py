@@ -185,14 +185,20 @@ def _table(headers: Sequence[str], rows: Sequence[Sequence[tuple[str, bool]]],
     return "".join(out)
 
 
-def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True) -> str:
+def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True,
+                   max_rows: int | None = None) -> str:
     """The cut table as readable HTML: one row per cut, units in the column names.
 
     The headline table shows what a geologist checks first; with ``full`` every column of the
-    cut table follows in a collapsible section, as the program wrote it.
+    cut table follows in a collapsible section, as the program wrote it. ``max_rows`` keeps a
+    huge field's page readable: the first rows are shown and the page says how many are left
+    out (the CSV or Parquet cut table holds them all).
     """
     if cuts is None or len(cuts) == 0:
         return '<p class="ok">No fault cut found.</p>'
+    n_all = len(cuts)
+    if max_rows is not None and n_all > max_rows:
+        cuts = cuts.iloc[:max_rows]
     u = _unit_of(cuts)
     lu = "ft" if u in ("ft", "usft") else "m"
 
@@ -231,6 +237,9 @@ def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True) -> str:
             notes.append(f"<li><b>{_esc(row.get('well', ''))}, MD {_fmt(col(row, 'md'))} "
                          f"{lu}</b>: {_esc(note)}</li>")
     out = _table(headers, rows, cls="cuts")
+    if len(cuts) < n_all:
+        out += (f'<p class="sub">The first {len(cuts):,} of {n_all:,} cuts are shown; the cut '
+                "table written beside this report holds them all.</p>")
     if notes:
         out += '<h3>Notes on the cuts</h3><ul class="notes">' + "".join(notes) + "</ul>"
     if full:
@@ -258,15 +267,22 @@ def _errors_frame(errors) -> pd.DataFrame:
     return pd.DataFrame(rows)
 
 
-def error_table_html(errors) -> str:
+def error_table_html(errors, *, max_rows: int | None = None) -> str:
     """The errors met, as an HTML table (a screening error table, or messages)."""
     df = _errors_frame(errors)
     if len(df) == 0:
         return '<p class="ok">No error met.</p>'
+    n_all = len(df)
+    if max_rows is not None and n_all > max_rows:
+        df = df.iloc[:max_rows]
     headers = list(df.columns)
     rows = [[(_esc(v if not (isinstance(v, float) and math.isnan(v)) else ""), False)
              for v in r] for r in df.itertuples(index=False)]
-    return _table(headers, rows, cls="errors")
+    out = _table(headers, rows, cls="errors")
+    if len(df) < n_all:
+        out += (f'<p class="sub">The first {len(df):,} of {n_all:,} errors are shown; the error '
+                "table written beside this report holds them all.</p>")
+    return out
 
 
 def _assumptions_html(items: list[tuple[str, str]], extra) -> str:
@@ -505,8 +521,8 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
                  faults: pd.DataFrame | None = None, paths: Mapping | None = None,
                  tracks: Mapping[str, pd.DataFrame] | None = None, column=None,
                  assumptions=None, tolerance=None, bed_dip=None, tvdss_m: float | None = None,
-                 max_well_figures: int = 40, progress: bool | None = None,
-                 title: str | None = None) -> str:
+                 max_well_figures: int = 40, max_table_rows: int = 5000,
+                 progress: bool | None = None, title: str | None = None) -> str:
     """HTML text of a field's report (see :func:`write_field_report`)."""
     from . import plots
 
@@ -560,7 +576,7 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
     body.append("<h2 id=\"cuts\">Fault cuts</h2>")
     u = _unit_of(c) if len(c.columns) else "m"
     body.append(f'<p class="sub">One row per cut in every well; lengths in {_esc(u)}.</p>')
-    body.append(cut_table_html(c))
+    body.append(cut_table_html(c, max_rows=max_table_rows))
 
     body.append("<h2 id=\"wells\">Wells</h2>")
     rows = []
@@ -568,7 +584,9 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
         if len(c) and {"well", "section"} <= set(c.columns) else pd.DataFrame()
     err_by_well = errs.groupby(errs["well"].astype(str)).size() if "well" in errs.columns \
         else pd.Series(dtype=int)
-    for w in well_names:
+    # failed wells first, then wells with cuts, then the rest (as many as max_table_rows)
+    order = sorted(well_names, key=lambda w: (w not in failed, w not in with_cuts))
+    for w in order[:max_table_rows]:
         nm = int(counts.loc[w].get("missing", 0)) if w in counts.index else 0
         nr = int(counts.loc[w].get("repeated", 0)) if w in counts.index else 0
         ne = int(err_by_well.get(w, 0))
@@ -577,6 +595,9 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
                      (_esc(status), False)])
     body.append(_table(["well", "cuts with missing section", "cuts with repeated section",
                         "errors", "status"], rows))
+    if len(order) > max_table_rows:
+        body.append(f'<p class="sub">{max_table_rows:,} of {len(order):,} wells listed: those '
+                    "that failed first, then those with cuts.</p>")
 
     if tracks:
         names = [w for w in well_names if w in tracks and w in with_cuts][:max_well_figures]
@@ -604,7 +625,7 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
     body.append("<h2 id=\"errors\">Errors met</h2>")
     if problems:
         errs = pd.concat([errs, pd.DataFrame({"message": problems})], ignore_index=True)
-    body.append(error_table_html(errs))
+    body.append(error_table_html(errs, max_rows=max_table_rows))
     return _page(title or "Fault cuts in the field",
                  f"{len(c)} cut{'s' if len(c) != 1 else ''} in {len(with_cuts)} of "
                  f"{len(well_names)} wells; {len(failed)} well{'s' if len(failed) != 1 else ''} "
@@ -617,7 +638,8 @@ def write_field_report(path: str | os.PathLike, *, cuts: pd.DataFrame | None, er
                        tracks: Mapping[str, pd.DataFrame] | None = None, column=None,
                        assumptions=None, tolerance=None, bed_dip=None,
                        tvdss_m: float | None = None, max_well_figures: int = 40,
-                       progress: bool | None = None, title: str | None = None) -> Path:
+                       max_table_rows: int = 5000, progress: bool | None = None,
+                       title: str | None = None) -> Path:
     """Write a field's self-contained HTML report to ``path`` (atomically) and return the path.
 
     Parameters
@@ -646,9 +668,13 @@ def write_field_report(path: str | os.PathLike, *, cuts: pd.DataFrame | None, er
         What the numbers rest on (see :func:`write_well_report`).
     tvdss_m : float, optional
         Depth of the fault traces on the map (default the median depth of the cuts).
+    max_table_rows : int
+        At most this many rows in each table of the page (cuts, wells, errors); the page says
+        how many are left out. The CSV/Parquet tables of the run hold them all.
     """
     text = field_report(cuts=cuts, errors=errors, wells=wells, faults=faults, paths=paths,
                         tracks=tracks, column=column, assumptions=assumptions,
                         tolerance=tolerance, bed_dip=bed_dip, tvdss_m=tvdss_m,
-                        max_well_figures=max_well_figures, progress=progress, title=title)
+                        max_well_figures=max_well_figures, max_table_rows=max_table_rows,
+                        progress=progress, title=title)
     return write_atomic(path, text)
