@@ -1,0 +1,242 @@
+"""The alignment engine's DP: exact optimum (oracle), streaming = batch, inputs, bookkeeping."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from wellfault.align import AlignmentEngine, resample_strat, stretch_moves
+from wellfault.errors import AlignmentError, InputError
+
+# ---------------------------------------------------------------------------------------------
+# Oracle: every allowed path enumerated in plain Python, with the cost definition written out
+# again here (engine.py module docstring; misfit.py). Rows come from resample_strat, which has
+# its own tests (test_align_resample.py).
+
+
+def _plain_misfit(x, y_lo, y_hi, w, kind, delta, null_misfit):
+    num = den = 0.0
+    for c in range(len(x)):
+        if math.isnan(x[c]) or math.isnan(y_lo[c]):
+            continue
+        d = max(y_lo[c] - x[c], x[c] - y_hi[c], 0.0)
+        rho = d if kind == "abs" else (0.5 * d * d if d <= delta else delta * (d - 0.5 * delta))
+        num += w[c] * rho
+        den += w[c]
+    return num / den if den > 0 else null_misfit
+
+
+def _plain_bounds(ref, subsample):
+    m, nc = ref.shape
+    lo, hi = ref.copy(), ref.copy()
+    if subsample:
+        for j in range(m):
+            for c in range(nc):
+                vals = [ref[j, c]]
+                if j > 0 and not math.isnan(ref[j - 1, c]):
+                    vals.append(0.5 * (ref[j - 1, c] + ref[j, c]))
+                if j + 1 < m and not math.isnan(ref[j + 1, c]):
+                    vals.append(0.5 * (ref[j, c] + ref[j + 1, c]))
+                lo[j, c], hi[j, c] = min(vals), max(vals)
+    return lo, hi
+
+
+def _oracle_best(rows, ref, *, w, stretch, jump, strain, kind, delta, null_misfit, subsample):
+    """Minimum cost over every path: each row visited once; moves FOLLOW, FAST, SLOW, JUMP."""
+    R, M = rows.n_rows, ref.shape[0]
+    lo, hi = _plain_bounds(ref, subsample)
+    e = [[_plain_misfit(rows.values[r], lo[j], hi[j], w, kind, delta, null_misfit)
+          for j in range(M)] for r in range(R)]
+    Rr = [math.floor(c + 0.5) for c in rows.centre]
+    sig = list(rows.direction)
+    bf = math.ceil(1 / (stretch - 1) - 1e-9)
+    bs = math.ceil(stretch / (stretch - 1) - 1e-9)
+    best = math.inf
+
+    def rec(r, j, cost):
+        nonlocal best
+        if r == R - 1:
+            best = min(best, cost)
+            return
+        jn = j + Rr[r + 1] - Rr[r]                                   # FOLLOW
+        if 0 <= jn < M:
+            rec(r + 1, jn, cost + e[r + 1][jn])
+        for b, faster in ((bf, +1), (bs, -1)):                       # FAST, SLOW
+            rl = r + b
+            if rl > R - 1 or any(sig[t] != sig[rl] for t in range(r + 1, rl + 1)):
+                continue
+            jl = j + Rr[rl] - Rr[r] + faster * sig[rl]
+            cells = [(t, jl - (Rr[rl] - Rr[t])) for t in range(r + 1, rl + 1)]
+            if all(0 <= c < M for _, c in cells):
+                rec(rl, jl, cost + strain + sum(e[t][c] for t, c in cells))
+        for jn in range(M):                                          # JUMP (anywhere)
+            rec(r + 1, jn, cost + jump + e[r + 1][jn])
+
+    for j in range(M):
+        rec(0, j, e[0][j])
+    return best
+
+
+def _random_case(seed):
+    rng = np.random.default_rng(seed)
+    choices = [1.0, 0.4, 0.3, 0.7, -1.0, -0.45, 0.05, -0.02, 1.6, 2.2, -1.3]
+    while True:
+        n = int(rng.integers(1, 7))
+        m = int(rng.integers(2, 7))
+        nc = int(rng.integers(1, 3))
+        step = rng.choice(choices, size=n) * rng.uniform(0.8, 1.2, size=n)
+        rows = resample_strat(np.zeros((n, nc)), step, min_rate=0.1)
+        if rows.n_rows <= 6 and (m + 3) ** (rows.n_rows - 1) * m <= 40_000:
+            break
+    well = rng.normal(size=(n, nc)).round(1)
+    ref = rng.normal(size=(m, nc)).round(1)
+    if rng.random() < 0.3:
+        well[rng.integers(n), rng.integers(nc)] = np.nan
+    if rng.random() < 0.3:
+        ref[rng.integers(m), rng.integers(nc)] = np.nan
+    params = dict(
+        stretch=float(rng.choice([1.25, 1.5, 2.0])),
+        jump_penalty=float(rng.uniform(0.2, 3.0)),
+        strain_penalty=float(rng.choice([0.0, 0.1, 0.4])),
+        misfit=str(rng.choice(["huber", "abs"])),
+        huber_delta=float(rng.choice([0.5, 1.0])),
+        null_misfit=0.5,
+        subsample=bool(rng.random() < 0.3),
+        weights=rng.uniform(0.5, 2.0, size=nc),
+    )
+    return well, ref, step, params
+
+
+@pytest.mark.parametrize("seed", list(range(80)))
+def test_engine_score_equals_exhaustive_search_over_all_paths(seed):
+    well, ref, step, prm = _random_case(seed)
+    eng = AlignmentEngine(ref, standardise=False, min_rate=0.1, **prm)
+    al = eng.align(well, step)
+    rows = resample_strat(well, step, min_rate=0.1)
+    want = _oracle_best(rows, ref, w=prm["weights"], stretch=prm["stretch"],
+                        jump=prm["jump_penalty"], strain=prm["strain_penalty"],
+                        kind=prm["misfit"], delta=prm["huber_delta"], null_misfit=0.5,
+                        subsample=prm["subsample"])
+    assert al.score == pytest.approx(want, rel=1e-9, abs=1e-9)
+
+
+def test_oracle_cases_cover_jumps_stretch_moves_and_turning_points():
+    """Guard against a vacuous oracle test: the random cases exercise every feature."""
+    seen = {"jump": 0, "flip": 0, "partial": 0, "floor": 0}
+    for seed in range(80):
+        well, ref, step, prm = _random_case(seed)
+        rows = resample_strat(well, step, min_rate=0.1)
+        seen["flip"] += int(np.any(np.diff(rows.direction) != 0))
+        seen["partial"] += int(np.any(rows.arc < 1 - 1e-9))
+        seen["floor"] += int(np.any(np.abs(step) < 0.1))
+        al = AlignmentEngine(ref, standardise=False, **prm).align(well, step)
+        seen["jump"] += int(len(al.jumps) > 0)
+    assert all(v >= 5 for v in seen.values()), seen
+
+
+def test_returned_path_costs_the_reported_score():
+    rng = np.random.default_rng(3)
+    ref = rng.normal(size=(60, 2))
+    well = np.vstack([ref[5:25], ref[40:55], ref[30:45]]) + 0.05 * rng.normal(size=(50, 2))
+    eng = AlignmentEngine(ref, standardise=False, jump_penalty=1.0)
+    al = eng.align(well, np.ones(50))
+    e = np.abs(well - ref[al.row_path])                   # step 1: one row per sample
+    mis = np.where(e <= 1.0, 0.5 * e**2, e - 0.5).mean(axis=1)
+    lag = al.row_path - np.arange(50)
+    n_jumps = len(al.jumps)
+    n_strain = int(np.count_nonzero(np.diff(lag))) - n_jumps
+    assert n_jumps == 2
+    assert al.score == pytest.approx(mis.sum() + n_jumps * 1.0 + n_strain * 0.05)
+
+
+def test_streaming_sample_by_sample_equals_batch():
+    rng = np.random.default_rng(7)
+    ref = np.cumsum(rng.normal(size=400))
+    ref = (ref - ref.mean()) / ref.std() + 0.3 * rng.normal(size=400)
+    # a well that drills down, turns and drills up through a fault, with fractional steps
+    step = np.concatenate([np.full(120, 0.6), np.linspace(0.6, -0.8, 40), np.full(140, -0.8)])
+    pos = 150 + np.cumsum(step)
+    pos[200:] += 35.0
+    well = np.interp(pos, np.arange(400), ref) + 0.05 * rng.normal(size=300)
+    well[50:53] = np.nan
+    eng = AlignmentEngine(ref)
+    c, s = eng.calibrate(well, step)
+    batch = eng.align(well, step, center=c, scale=s)
+    st = eng.stream(center=c, scale=s)
+    for i in range(well.shape[0]):
+        st.push(well[i], step[i])
+        if i == 180:
+            part = st.current()
+            prefix = eng.align(well[:181], step[:181], center=c, scale=s)
+            assert part.score == prefix.score
+            np.testing.assert_array_equal(part.path, prefix.path)
+    live = st.current()
+    assert live.score == batch.score
+    np.testing.assert_array_equal(live.path, batch.path)
+    assert live.jumps == batch.jumps
+    assert [j.sample for j in batch.jumps] == [200]
+
+
+def test_stream_accepts_chunks_and_default_standardisation():
+    rng = np.random.default_rng(2)
+    ref = rng.normal(size=(100, 1))
+    eng = AlignmentEngine(ref)
+    st = eng.stream()
+    st.push(ref[10:30], np.ones(20))
+    st.push(ref[30, :], 1.0)
+    al = st.current()
+    assert al.path.shape == (21,)
+    np.testing.assert_allclose(al.path, np.arange(10, 31), atol=0.6)
+    np.testing.assert_array_equal(al.center, eng.prep_["ref_center"])
+
+
+def test_stretch_moves_meet_the_stretch_window_exactly():
+    for k in (1.1, 1.25, 1.5, 2.0):
+        bf, bs = stretch_moves(k)
+        assert (bf + 1) / bf <= k + 1e-12 and (bs - 1) / bs >= 1 / k - 1e-12
+        assert bf == 1 or bf / (bf - 1) > k            # the shortest such moves
+        assert bs == 2 or (bs - 2) / (bs - 1) < 1 / k
+    assert stretch_moves(1.5) == (2, 3)
+
+
+def test_traceback_memory_is_one_byte_per_row_and_reference_sample():
+    rng = np.random.default_rng(0)
+    ref = rng.normal(size=3000)
+    st = AlignmentEngine(ref).stream()
+    st.push(rng.normal(size=2500), np.ones(2500))
+    code_bytes = sum(b.nbytes for b in st._blocks)
+    assert all(b.dtype == np.uint8 for b in st._blocks)
+    assert code_bytes <= st.n_rows * 3000 + st._block_rows * 3000
+    assert st._F.nbytes + st._E.nbytes < 10 * 3000 * 8           # O(M) cost rows
+
+
+@pytest.mark.parametrize(
+    ("kwargs", "match"),
+    [
+        ({"stretch": 1.0}, "stretch outside"),
+        ({"stretch": 3.0}, "stretch outside"),
+        ({"jump_penalty": 0.0}, "jump_penalty must be positive"),
+        ({"misfit": "l2"}, "unknown misfit"),
+        ({"weights": [1.0, 2.0]}, "weights"),
+        ({"min_rate": 0.0}, "min_rate"),
+    ],
+)
+def test_bad_engine_arguments_are_named_in_the_error(kwargs, match):
+    with pytest.raises(InputError, match=match):
+        AlignmentEngine(np.zeros((10, 1)), **kwargs)
+
+
+def test_bad_well_inputs_are_rejected_with_the_fix():
+    eng = AlignmentEngine(np.random.default_rng(0).normal(size=(30, 2)))
+    with pytest.raises(InputError, match=r"shape \(N, 2\)"):
+        eng.align(np.zeros((5, 3)), np.ones(5))
+    with pytest.raises(InputError, match="one value per well sample"):
+        eng.align(np.zeros((5, 2)), np.ones(4))
+    with pytest.raises(InputError, match="finite"):
+        eng.align(np.zeros((2, 2)), [1.0, np.nan])
+    with pytest.raises(AlignmentError, match="no well samples"):
+        eng.stream().current()
+    with pytest.raises(InputError, match="M >= 2"):
+        AlignmentEngine(np.zeros(1))

@@ -1,0 +1,394 @@
+"""The alignment engine: map every well sample to a position in the type log, faults included.
+
+Model
+-----
+Input at the array level: ``ref`` (M, C) type-log curves on a regular strat grid of step
+``ds``; ``well`` (N, C) curves; ``step`` (N,) the *predicted* signed strat increment of each well
+sample in reference samples (``r·ΔMD/ds`` from trajectory and bed dip; < 1 in high-angle
+wells, negative while drilling up-section, may change sign). The result maps each well sample
+to a reference position (float index, 0 = first type-log sample); a jump of that position is a
+fault cut, and its size Δs (reference samples; × ds = TST) is missing section when its sign is
+the direction of travel, repeated section when opposite (DESIGN.md §2).
+
+Discretisation: strat rows, strain-limited moves
+------------------------------------------------
+A DP over (well sample, reference sample) with integer reference positions cannot honour a
+fractional predicted step: with ``step = 0.3`` and stretch ``k = 1.5`` the allowed increment
+``[0.2, 0.45]`` holds no integer, so per-sample moves either stall for free (0) or are
+forbidden; carrying a fractional position instead multiplies states and traceback bytes. We
+therefore first resample the well in predicted stratigraphic arc length (:mod:`.resample`):
+rows one reference sample apart, each predicted to move exactly ±1 reference sample (samples
+are box-averaged into rows in high-angle wells, shared between rows where the well outruns the
+reference grid; a row never straddles a turning point). On these rows the thickness change
+``[1/k, k]`` is expressed by strain-limited multi-row moves — the strain limits of Hale's
+dynamic warping (2013) — in lag ``ℓ = j − round(predicted position)``:
+
+* FOLLOW — one row, lag unchanged (the path moves exactly as predicted);
+* FAST   — ``bf = ceil(1/(k−1))`` rows, lag +1 in the direction of travel: ``bf+1`` reference
+  samples in ``bf`` rows, a ratio ``(bf+1)/bf <= k``;
+* SLOW   — ``bs = ceil(k/(k−1))`` rows, lag −1: ``(bs−1)/bs >= 1/k``;
+* JUMP   — one row, to *any* reference sample, forward or backward, cost ``jump_penalty``;
+  it comes from the best cell of the previous row, so its source is one integer per row.
+
+For the default ``k = 1.5``: ``bf = 2``, ``bs = 3``, local slopes 3/2, 1 and 2/3 — the stretch
+window holds on every move and over any run of moves; the price is that a lag change is
+quantised to one reference sample. Rows inside a multi-row move sit at the new lag and their
+misfits are added. FAST/SLOW moves need every row they span to have the same direction (no
+stretch across a turning point) and cost ``strain_penalty`` each (a soft preference for the
+predicted increment). Where ``|step| < min_rate`` (well nearly parallel to bedding) the arc
+length is floored at ``min_rate``: a row then spans more samples and predicts less than one
+sample of movement, so the lag may drift by up to about ``(k−1)·min_rate`` per well sample
+there — an additive tolerance standing for the dip uncertainty, which dominates in such hole.
+Nothing lets the path stall for free: not moving when a move is predicted needs SLOW moves
+(limited rate, penalised) or a jump.
+
+Exactness and cost
+------------------
+The DP is exact: the global minimum over all such paths, with free start and end in the
+reference (checked against exhaustive enumeration in tests/test_align_engine.py). Time
+O(R·M) with O(1) work per cell in a branch-free, vectorised row pass; memory: one byte per
+(row, reference sample) for the move codes, plus O(M) cost rows and O(R + N) per-row/sample
+arrays. ``R`` = total predicted strat arc length in reference samples: ``R <= N`` while
+``|step| <= 1``; ``R ≈ N·|step|`` in high-angle wells. The forward pass runs one row at a time
+(:class:`~wellfault.align.stream.StreamingAligner`); :meth:`AlignmentEngine.align` is one push.
+
+Standardisation
+---------------
+Curves are compared after robust standardisation (:mod:`.misfit`). The well's own statistics
+are biased when it logs only part of the column, so :meth:`AlignmentEngine.calibrate` first
+aligns coarsely, then matches the well's quantiles to those of the type-log samples it covers.
+
+Cut evidence
+------------
+A cut found on rows is placed on the well's own samples by splitting the samples of its two
+rows where the misfit (type log interpolated at each sample's position) is least. For each
+jump, on the window of ``evidence_rows`` rows either side not crossing the neighbouring jumps,
+two jump-free DPs (forward from the path's cell at the window start, backward from anywhere
+near its cell at the window end) give the best cost with one jump landing on each row of the
+window — ``bracket``: the rows where it costs at most ``bracket_tolerance`` more than the best —
+and the best cost with no jump in the window. ``margin`` = no-jump cost − best one-jump cost
+(the jump penalty included): the evidence that a cut, not stretch, explains the window;
+``confidence = 1/(1 + exp(−margin/confidence_scale))`` (to be calibrated on a benchmark set).
+``size`` is the difference of straight lines fitted to the path's lag on either side
+(evaluated at the cut), which removes the one-sample quantisation and the lag the path may
+carry into a jump.
+
+Scaling of ``jump_penalty``
+---------------------------
+Costs are per-row misfits of standardised curves (an unrelated pairing ≈ 0.7, a good match
+≈ noise²/2 with the Huber default), so a jump is taken when it improves the fit by more than
+``jump_penalty`` summed over the rows it affects — with the default 6, about ten rows of
+clearly better match. It does not depend on the number of curves (the misfit is a weighted
+mean). Rows are one reference sample of strat each: to keep the same evidence in metres when
+the type-log grid ``ds`` is refined by a factor f, multiply ``jump_penalty`` by f.
+
+Limits
+------
+The type log must cover the strat interval the well drills: a well running past either end of
+``ref`` is forced into a spurious jump. Stretch is limited to 1.1 <= k <= 2 (move lengths).
+
+References
+----------
+.. [1] D. Hale, "Dynamic warping of seismic images", Geophysics 78(2):S105-S115, 2013,
+   doi:10.1190/geo2012-0327.1 (journal details from memory; CWP-723 report, see
+   reference/methods.md §5.1): strain-limited warping.
+.. [2] M. S. Waterman and R. Raymond, "The match game: new stratigraphic correlation
+   algorithms", Mathematical Geology 19:109-127, 1987 (a gap as one weighted event).
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import input_error
+from .misfit import check_misfit, reference_bounds, robust_location_scale
+from .stream import StreamingAligner, _as_curves
+
+__all__ = ["AlignmentEngine", "StreamingAligner", "Alignment", "Jump", "stretch_moves"]
+
+
+def stretch_moves(stretch: float) -> tuple[int, int]:
+    """Rows spanned by the FAST and SLOW moves for stretch factor ``k``.
+
+    >>> stretch_moves(1.5)
+    (2, 3)
+    """
+    k = float(stretch)
+    return math.ceil(1.0 / (k - 1.0) - 1e-9), math.ceil(k / (k - 1.0) - 1e-9)
+
+
+@dataclass(frozen=True)
+class Jump:
+    """One jump of the alignment path: a candidate fault cut.
+
+    Attributes
+    ----------
+    sample : first well sample below the cut (DESIGN.md: a cut is reported at the first sample
+        below it).
+    row : DP row on which the jump lands.
+    j_before, j_after : reference position [reference samples] of the last sample above and of
+        the first sample below.
+    size : signed stratigraphic jump Δs = s(below) − s(above) minus the predicted increment
+        between the two samples [reference samples; multiply by ds for TST], from lines fitted
+        to the lag on either side (module docstring). Missing section when its sign equals
+        the direction of travel, repeated when opposite.
+    margin : evidence for the cut (see module docstring) [misfit units].
+    confidence : logistic of margin / confidence_scale, in [0, 1].
+    bracket : (first, last) well sample that may be the first below the cut (placements
+        costing at most ``bracket_tolerance`` more than the best).
+    """
+
+    sample: int
+    row: int
+    j_before: float
+    j_after: float
+    size: float
+    margin: float
+    confidence: float
+    bracket: tuple[int, int]
+
+
+@dataclass(frozen=True)
+class Alignment:
+    """Result of aligning a well against the type log.
+
+    Attributes
+    ----------
+    path : (N,) float — reference position of every well sample [reference samples].
+    score : total cost of the optimal path (misfits + jump and strain penalties).
+    jumps : the jumps of the path, in well order.
+    confidence : (N,) float in [0, 1] — local fit quality: 1 − misfit at the path / mean misfit
+        of the row, smoothed over ``smooth_rows`` rows.
+    row_path : (R,) int — reference column of each DP row.
+    sample_row : (N,) int — DP row of each well sample.
+    center, scale : (C,) — the well standardisation used.
+    """
+
+    path: np.ndarray
+    score: float
+    jumps: tuple[Jump, ...]
+    confidence: np.ndarray
+    row_path: np.ndarray
+    sample_row: np.ndarray
+    center: np.ndarray
+    scale: np.ndarray
+
+    @property
+    def n_rows(self) -> int:
+        return int(self.row_path.shape[0])
+
+
+class AlignmentEngine:
+    """Exact dynamic-programming alignment of well curves to a type log, with fault jumps.
+
+    Parameters
+    ----------
+    ref : (M, C) or (M,) array_like — type-log curves on a regular strat grid, NaN = null.
+    weights : (C,) array_like, optional — relative weight of each curve (default equal).
+    stretch : float — natural thickness change allowed: the actual strat increment lies in
+        ``[step/k, step·k]`` (1.1 <= k <= 2).
+    jump_penalty : float — cost of one jump (fault) [per-row misfit units]; see module notes.
+    strain_penalty : float — cost of each one-sample lag change (FAST/SLOW move).
+    misfit : one of :data:`~wellfault.align.misfit.MISFITS`.
+    huber_delta : float — Huber threshold [robust spreads].
+    null_misfit : float — misfit of a cell where no curve is valid in both well and reference.
+    min_rate : float — floor on ``|step|`` for the strat arc length [reference samples].
+    standardise : bool — standardise curves (median and 10–90 % range) before the misfit.
+    subsample : bool — measure the misfit to the reference's range within half a sample
+        (:func:`~wellfault.align.misfit.reference_bounds`), so that whole-sample positions
+        do not pay for sub-sample offsets.
+    calibrate_passes, calibrate_factor : well standardisation matched to the covered part of
+        the type log (:meth:`calibrate`); 0 passes = the well's own median and spread.
+    evidence_rows, bracket_tolerance, confidence_scale : cut evidence (module docstring).
+    smooth_rows : int — half-width of the smoothing of the local confidence [rows].
+    """
+
+    def __init__(
+        self,
+        ref: np.ndarray,
+        *,
+        weights: np.ndarray | None = None,
+        stretch: float = 1.5,
+        jump_penalty: float = 6.0,
+        strain_penalty: float = 0.05,
+        misfit: str = "huber",
+        huber_delta: float = 1.0,
+        null_misfit: float = 0.5,
+        min_rate: float = 0.1,
+        standardise: bool = True,
+        subsample: bool = False,
+        calibrate_passes: int = 2,
+        calibrate_factor: int = 4,
+        evidence_rows: int = 200,
+        bracket_tolerance: float = 1.0,
+        confidence_scale: float = 2.0,
+        smooth_rows: int = 5,
+    ) -> None:
+        self.ref = ref
+        self.weights = weights
+        self.stretch = stretch
+        self.jump_penalty = jump_penalty
+        self.strain_penalty = strain_penalty
+        self.misfit = misfit
+        self.huber_delta = huber_delta
+        self.null_misfit = null_misfit
+        self.min_rate = min_rate
+        self.standardise = standardise
+        self.subsample = subsample
+        self.calibrate_passes = calibrate_passes
+        self.calibrate_factor = calibrate_factor
+        self.evidence_rows = evidence_rows
+        self.bracket_tolerance = bracket_tolerance
+        self.confidence_scale = confidence_scale
+        self.smooth_rows = smooth_rows
+        self._check()
+
+    # -- set-up -------------------------------------------------------------------------------
+    def _check(self) -> None:
+        r = np.asarray(self.ref, dtype=float)
+        if r.ndim not in (1, 2) or r.shape[0] < 2:
+            raise input_error("reference must be an (M, C) or (M,) array with M >= 2",
+                              value=r.shape, fix="pass the type-log curves sample by sample")
+        nc = 1 if r.ndim == 1 else r.shape[1]
+        if self.weights is not None:
+            w = np.asarray(self.weights, dtype=float)
+            if w.shape != (nc,) or np.any(~np.isfinite(w)) or np.any(w < 0) or w.sum() <= 0:
+                raise input_error("weights must be C finite non-negative numbers, not all 0",
+                                  value=w.tolist(), fix=f"pass {nc} weights")
+        if not 1.1 <= float(self.stretch) <= 2.0:
+            raise input_error("stretch outside [1.1, 2]", value=self.stretch,
+                              fix="use e.g. 1.5 (thickness may vary by a factor 1.5)")
+        for name in ("jump_penalty", "confidence_scale", "huber_delta"):
+            if not float(getattr(self, name)) > 0:
+                raise input_error(f"{name} must be positive", value=getattr(self, name))
+        for name in ("strain_penalty", "null_misfit", "bracket_tolerance"):
+            if not float(getattr(self, name)) >= 0:
+                raise input_error(f"{name} must be >= 0", value=getattr(self, name))
+        if not 0 < float(self.min_rate) <= 1:
+            raise input_error("min_rate outside (0, 1]", value=self.min_rate)
+        check_misfit(self.misfit)
+
+    def _prepared(self) -> dict:
+        if getattr(self, "prep_", None) is None:
+            r = np.asarray(self.ref, dtype=float)
+            r = r[:, None] if r.ndim == 1 else r
+            c, s = robust_location_scale(r)
+            z = (r - c) / s if self.standardise else r
+            ref_t = np.ascontiguousarray(z.T)
+            lo_t, hi_t = reference_bounds(ref_t, bool(self.subsample))
+            w = np.ones(r.shape[1]) if self.weights is None else np.asarray(self.weights, float)
+            bf, bs = stretch_moves(self.stretch)
+            self.prep_ = dict(
+                ref_t=ref_t, lo_t=lo_t, hi_t=hi_t, ref_nan=bool(np.isnan(ref_t).any()),
+                w=np.ascontiguousarray(w),
+                kind=check_misfit(self.misfit), bf=bf, bs=bs, pad=bs + 2, nb=bs + 1,
+                ref_center=c, ref_scale=s, n_curves=r.shape[1],
+            )
+        return self.prep_
+
+    # -- public -------------------------------------------------------------------------------
+    def stream(self, *, center: np.ndarray | None = None,
+               scale: np.ndarray | None = None) -> StreamingAligner:
+        """A streaming aligner for a well being drilled (``push`` samples, read ``current``).
+
+        ``center``/``scale`` (C,) standardise the well's curves; while drilling the well's own
+        statistics are unknown, so by default the type log's raw median and spread are used
+        (tools assumed calibrated alike) — pass values from an offset well or from the first
+        part of the hole when that does not hold.
+        """
+        p = self._prepared()
+        if center is None or scale is None:
+            center = p["ref_center"] if center is None else center
+            scale = p["ref_scale"] if scale is None else scale
+        return StreamingAligner(self, center, scale)
+
+    def align(self, well: np.ndarray, step: np.ndarray, *, center: np.ndarray | None = None,
+              scale: np.ndarray | None = None) -> Alignment:
+        """Align a whole well: the optimal path, its jumps and their evidence.
+
+        Parameters
+        ----------
+        well : (N, C) or (N,) array_like — well curves, NaN = null.
+        step : (N,) array_like — predicted signed strat increment of each sample [reference
+            samples].
+        center, scale : (C,) optional — well standardisation; by default from
+            :meth:`calibrate` (the well's quantiles matched to those of the type-log samples it
+            covers), or the well's own median and spread when ``calibrate_passes == 0``.
+        """
+        p = self._prepared()
+        x = _as_curves(well, p["n_curves"], "well")
+        s = np.asarray(step, dtype=float).ravel()
+        if s.shape[0] != x.shape[0] or not np.all(np.isfinite(s)):
+            raise input_error("step must be finite, one value per well sample",
+                              value=(s.shape[0], x.shape[0]),
+                              fix="pass the predicted strat increment of every sample")
+        if self.standardise and (center is None or scale is None):
+            c0, s0 = self.calibrate(x, s) if self.calibrate_passes > 0 else \
+                robust_location_scale(x)
+            center = c0 if center is None else center
+            scale = s0 if scale is None else scale
+        return self._align(x, s, center, scale, evidence=True)
+
+    def _align(self, x, s, center, scale, evidence: bool) -> Alignment:
+        aligner = StreamingAligner(self, center, scale)
+        aligner.push(x, s)
+        return aligner._result(evidence)
+
+    def calibrate(self, well: np.ndarray, step: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Well standardisation matched to the part of the type log the well covers.
+
+        The well's own median and spread are wrong whenever it logs only part of the column
+        (a sand-rich or shale-rich interval). Starting from them, a coarse alignment (reference
+        box-averaged over ``calibrate_factor`` samples, cost 1/factor² of the full one) finds
+        which type-log samples the well covers; the well's centre and spread are then set so
+        that its quantiles (10 %, 20 %, … 90 %) fit those of the covered type-log samples by a
+        straight line (per curve; least squares on the nine quantile pairs).
+        Repeated ``calibrate_passes`` times.
+
+        Returns
+        -------
+        center, scale : (C,) — pass to :meth:`align` or :meth:`stream`.
+        """
+        p = self._prepared()
+        x = _as_curves(well, p["n_curves"], "well")
+        s = np.asarray(step, dtype=float).ravel()
+        center, scale = robust_location_scale(x)
+        ref_z = p["ref_t"].T
+        m = ref_z.shape[0]
+        f = int(self.calibrate_factor) if m // int(self.calibrate_factor) >= 8 else 1
+        mc = m // f
+        with warnings.catch_warnings():                    # all-null blocks stay null
+            warnings.simplefilter("ignore", RuntimeWarning)
+            coarse_ref = np.nanmean(ref_z[: mc * f].reshape(mc, f, -1), axis=1) if f > 1 \
+                else ref_z
+        coarse = AlignmentEngine(
+            coarse_ref, weights=self.weights, stretch=self.stretch,
+            jump_penalty=self.jump_penalty / f, strain_penalty=self.strain_penalty,
+            misfit=self.misfit, huber_delta=self.huber_delta, null_misfit=self.null_misfit,
+            min_rate=min(1.0, self.min_rate / f) if f > 1 else self.min_rate,
+            standardise=False, subsample=self.subsample, calibrate_passes=0,
+        )
+        for _ in range(int(self.calibrate_passes)):
+            al = coarse._align((x - center) / scale, s / f, None, None, evidence=False)
+            pos = al.path * f + 0.5 * (f - 1)
+            y = ref_z[np.clip(np.rint(pos), 0, m - 1).astype(np.int64)]
+            for c in range(x.shape[1]):
+                ok = ~np.isnan(x[:, c]) & ~np.isnan(y[:, c])
+                if ok.sum() < 3:
+                    continue
+                qx = np.quantile(x[ok, c], _CAL_QUANTILES)
+                qy = np.quantile(y[ok, c], _CAL_QUANTILES)
+                vy = float(np.var(qy))
+                if vy > 0:
+                    sc = float(np.mean((qx - qx.mean()) * (qy - qy.mean()))) / vy
+                    if sc > 0:
+                        scale[c] = sc
+                        center[c] = float(qx.mean() - sc * qy.mean())
+        return center, scale
+
+
+_CAL_QUANTILES = np.linspace(0.1, 0.9, 9)

@@ -1,0 +1,244 @@
+"""From the DP state to an :class:`~wellfault.align.engine.Alignment`: traceback, per-sample
+positions, cut refinement on the well's own samples, cut margin, bracket and confidence.
+
+The definitions are in the docstring of :mod:`wellfault.align.engine` ("Cut evidence").
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from . import _kernels as K
+from .misfit import MISFITS
+
+
+def _traceback(al, nrows: int, blocks: list) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    p = al._p
+    path = np.zeros(nrows, np.int64)
+    landing = np.zeros(nrows, np.uint8)
+    jumped = np.zeros(nrows, np.uint8)
+    r = nrows - 1
+    j = int(al._rowarg.a[r])
+    order = sorted(range(len(blocks)), key=lambda i: (blocks[i][0], i), reverse=True)
+    for i in order:
+        row0, blk = blocks[i]
+        if r < 0:
+            break
+        if row0 <= r < row0 + blk.shape[0]:
+            r, j = K.traceback_block(blk, row0, r, j, al._Rr.a, al._sig.a, p["bf"], p["bs"],
+                                     al._rowarg.a, path, landing, jumped)
+    return path, landing, jumped
+
+
+def _sample_misfit(z, pos, ref_t, w, kind, delta, null_misfit) -> np.ndarray:
+    """Misfit of standardised samples z (n, C) at float reference positions (linear interp)."""
+    m = ref_t.shape[1]
+    q = np.clip(pos, 0.0, m - 1.0)
+    i0 = np.minimum(np.floor(q).astype(np.int64), m - 2)
+    f = q - i0
+    y = ref_t[:, i0] * (1 - f) + ref_t[:, i0 + 1] * f           # (C, n)
+    d = z.T - y
+    a = np.abs(d)
+    rho = a if MISFITS[kind] == "abs" else np.where(a <= delta, 0.5 * d * d,
+                                                      delta * (a - 0.5 * delta))
+    ok = ~np.isnan(rho)
+    ww = w[:, None] * ok
+    num = np.where(ok, rho, 0.0) * w[:, None]
+    wsum = ww.sum(axis=0)
+    out = np.full(z.shape[0], float(null_misfit))
+    good = wsum > 0
+    out[good] = num.sum(axis=0)[good] / wsum[good]
+    return out
+
+
+def _path_misfit(x, path, p, kind, delta, null_misfit) -> np.ndarray:
+    """Misfit of each row at its path column (same definition as misfit.misfit_cols)."""
+    lo, hi = p["lo_t"][:, path].T, p["hi_t"][:, path].T            # (R, C)
+    d = np.maximum(np.maximum(lo - x, x - hi), 0.0)
+    q = np.minimum(d, delta)
+    rho = d if MISFITS[kind] == "abs" else q * (d - 0.5 * q)
+    ok = ~np.isnan(rho)
+    ww = p["w"][None, :] * ok
+    wsum = ww.sum(axis=1)
+    out = np.full(x.shape[0], float(null_misfit))
+    good = wsum > 0
+    out[good] = (np.where(ok, rho, 0.0) * ww).sum(axis=1)[good] / wsum[good]
+    return out
+
+
+def _landing_at_or_after(landing: np.ndarray, lo: int, hi: int) -> int:
+    for r in range(lo, hi + 1):
+        if landing[r]:
+            return r
+    return hi
+
+
+def _landing_at_or_before(landing: np.ndarray, hi: int, lo: int) -> int:
+    for r in range(hi, lo - 1, -1):
+        if landing[r]:
+            return r
+    return lo
+
+
+def _window_dp(al, rows: np.ndarray, Rr: np.ndarray, sig: np.ndarray, start_col: int,
+               centre: int, free: bool) -> np.ndarray:
+    """Row minima of the jump-free DP over the given window rows (engine kernel, no jumps).
+
+    Paths start on the first row at ``start_col`` (or, when ``free``, at any column within
+    reach of it); only the columns within reach (two per row either way) are computed.
+    """
+    p, e = al._p, al.engine
+    n = rows.shape[0]
+    m = p["lo_t"].shape[1]
+    run = np.ones(n, np.int64)
+    for i in range(1, n):
+        run[i] = run[i - 1] + 1 if sig[i] == sig[i - 1] else 1
+    reach = 2 * n + 2
+    c0, c1 = max(0, centre - reach), min(m, centre + reach + 1)
+    F = np.full((p["nb"], m + 2 * p["pad"]), np.inf)
+    E = np.full_like(F, np.inf)
+    rowmin = np.empty(n)
+    rowarg = np.empty(n, np.int64)
+    rowmean = np.empty(n)
+    codes = np.empty((n, m), np.uint8)
+    K.forward_rows(0, n, 0, -1 if free else start_col, c0, c1, rows, p["lo_t"], p["hi_t"],
+                   p["ref_nan"], p["w"], p["kind"], float(e.huber_delta), float(e.null_misfit),
+                   Rr, sig, run, p["bf"], p["bs"], math.inf, float(e.strain_penalty), F, E,
+                   rowmin, rowarg, rowmean, codes, 0)
+    return rowmin
+
+
+def _jump_evidence(al, r: int, a: int, z: int, path: np.ndarray,
+                   free_start: bool) -> tuple[float, int, int]:
+    """Margin and bracket rows (lo, hi) of the jump landing at row r, on window [a, z].
+
+    Paths start at the optimal path's cell of row a (anywhere near it if ``free_start``: the
+    well's first block) and end anywhere near its cell of row z (after z the next jump, or the
+    end of the window, frees the end). cost[k] = best such path with one jump, landing at row
+    a + k (forward jump-free DP to row a + k - 1, jump, backward jump-free DP from row a + k);
+    the alternative is the best such path with no jump at all. The backward DP is the engine's
+    forward kernel run on the reversed rows, whose multi-row moves put the lag change at the
+    other end of the move: same stretch limits, a slightly different path family.
+    """
+    e = al.engine
+    sl = slice(a, z + 1)
+    rows = al._rows.a[sl]
+    Rr, sig = al._Rr.a[sl], al._sig.a[sl]
+    fmin = _window_dp(al, rows, Rr, sig, int(path[a]), int(path[a]), free_start)
+    bmin = _window_dp(al, np.ascontiguousarray(rows[::-1]), np.ascontiguousarray(Rr[::-1]),
+                      np.ascontiguousarray(-sig[::-1]), int(path[z]), int(path[z]), True)[::-1]
+    cost = np.full(z - a + 1, np.inf)
+    cost[1:] = fmin[:-1] + float(e.jump_penalty) + bmin[1:]
+    best = float(cost.min())
+    alt = float(fmin[-1])
+    margin = alt - best if np.isfinite(alt) else math.inf
+    tol = float(e.bracket_tolerance) + 1e-9 * max(1.0, abs(best))
+    k = r - a
+    lo = hi = k
+    while lo - 1 >= 1 and cost[lo - 1] - best <= tol:
+        lo -= 1
+    while hi + 1 < cost.size and cost[hi + 1] - best <= tol:
+        hi += 1
+    return margin, a + lo, a + hi
+
+
+def _fitted_size(lag_row: np.ndarray, r: int, prev_r: int, next_r: int, W: int) -> float:
+    """Lag step at the jump landing on row r, from straight lines fitted to the path's lag.
+
+    The lag of the path is quantised to whole samples and, right next to a jump, can lag
+    behind a gradual thickness change (the jump re-anchors the path for free, so the DP has no
+    reason to catch up just before it). A least-squares line through the lag of up to ``W``
+    rows on each side (not crossing neighbouring jumps), evaluated at the cut, averages both
+    effects out; with fewer than 4 rows on a side the path's own lag there is used.
+    """
+    x = np.arange(lag_row.size, dtype=float)
+    ends = []
+    for lo, hi in ((max(prev_r, r - W), r), (r, min(next_r, r + W))):
+        if hi - lo >= 4:
+            k, c = np.polyfit(x[lo:hi], lag_row[lo:hi], 1)
+            ends.append(k * (r - 0.5) + c)
+        else:
+            ends.append(float(lag_row[r - 1] if hi == r else lag_row[r]))
+    return float(ends[1] - ends[0])
+
+
+def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
+    """The :class:`Alignment` of the first ``nrows`` rows of streaming aligner ``al``.
+
+    Without ``evidence`` the cut margins, brackets and confidences are left as NaN (used by
+    the calibration pre-pass, which needs the path only).
+    """
+    from .engine import Alignment, Jump
+
+    p, e = al._p, al.engine
+    n = al.n_samples
+    meta = al._meta.a
+    centre = meta[:nrows, 2]
+    path, landing, jumped = _traceback(al, nrows, blocks)
+    score = float(al._rowmin.a[nrows - 1])
+    srow = al._srow.a[:n].copy()
+    spos = al._spos.a[:n]
+    lag_row = path - centre                          # reference position minus prediction
+    pos = spos + lag_row[srow]
+    z = al._z.a[:n]
+    kind, delta, nm = p["kind"], float(e.huber_delta), float(e.null_misfit)
+
+    jump_rows = np.flatnonzero(jumped)
+    W = int(e.evidence_rows)
+    jumps = []
+    for q, r in enumerate(jump_rows):
+        r = int(r)
+        prev_r = int(jump_rows[q - 1]) if q > 0 else 0
+        next_r = int(jump_rows[q + 1]) if q + 1 < jump_rows.size else nrows
+        a = _landing_at_or_after(landing, max(prev_r, r - W), r - 1)
+        zz = _landing_at_or_before(landing, min(next_r - 1, r + W), r)
+        if evidence:
+            margin, lo, hi = _jump_evidence(al, r, a, zz, path, free_start=(q == 0 and a == 0))
+        else:
+            margin, lo, hi = math.nan, r, r
+        # place the cut on the well's own samples: split the samples of rows r-1 and r
+        i0 = int(np.searchsorted(srow, r - 1, "left"))
+        i1 = int(np.searchsorted(srow, r, "right"))
+        s_row = int(np.searchsorted(srow, r, "left"))
+        cut = s_row
+        if i1 - i0 >= 2:
+            idx = np.arange(i0, i1)
+            pre = _sample_misfit(z[idx], spos[idx] + lag_row[r - 1], p["ref_t"], p["w"],
+                                 kind, delta, nm)
+            post = _sample_misfit(z[idx], spos[idx] + lag_row[r], p["ref_t"], p["w"],
+                                  kind, delta, nm)
+            cpre = np.concatenate([[0.0], np.cumsum(pre)])
+            cpost = np.concatenate([np.cumsum(post[::-1])[::-1], [0.0]])
+            tot = cpre + cpost                        # split before idx[k], k = 0..len
+            k_best = int(np.argmin(tot))
+            if tot[k_best] < tot[s_row - i0] - 1e-12:
+                cut = i0 + k_best
+            pos[i0:cut] = spos[i0:cut] + lag_row[r - 1]
+            pos[cut:i1] = spos[cut:i1] + lag_row[r]
+        cut = min(max(cut, 1), n - 1) if n > 1 else 0
+        b_lo = int(np.searchsorted(srow, lo, "left"))
+        b_hi = int(np.searchsorted(srow, hi, "left"))
+        bracket = (min(b_lo, cut), min(max(b_hi, cut), n - 1))
+        size = _fitted_size(lag_row, r, prev_r, next_r, W)
+        conf = 1.0 / (1.0 + math.exp(-max(min(margin / float(e.confidence_scale), 700), -700)))
+        jumps.append(Jump(sample=cut, row=r, j_before=float(pos[cut - 1]) if cut > 0 else
+                          float("nan"), j_after=float(pos[cut]), size=size,
+                          margin=float(margin), confidence=conf, bracket=bracket))
+
+    # local fit quality per row, smoothed, then per sample
+    epath = _path_misfit(al._rows.a[:nrows], path, p, kind, delta, nm)
+    mean = al._rowmean.a[:nrows]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        qual = np.where(mean > 0, 1.0 - epath / mean, 0.0)
+    qual = np.clip(qual, 0.0, 1.0)
+    h = int(e.smooth_rows)
+    if h > 0 and nrows > 1:
+        ker = np.ones(2 * h + 1)
+        num = np.convolve(qual, ker, "same")
+        den = np.convolve(np.ones(nrows), ker, "same")
+        qual = num / den
+    return Alignment(path=pos, score=score, jumps=tuple(jumps), confidence=qual[srow],
+                     row_path=path, sample_row=srow, center=al.center.copy(),
+                     scale=al.scale.copy())

@@ -1,0 +1,172 @@
+"""Row-at-a-time forward pass of the alignment engine (a well being drilled).
+
+:class:`StreamingAligner` owns the DP state: the resampler state, a ring of the last few cost
+and misfit rows (O(M)), the per-row and per-sample arrays (O(N)) and the move codes, one byte
+per (row, reference sample), in blocks of rows. ``AlignmentEngine.align`` is a single push of
+the whole well, so batch and streaming results are identical by construction.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from ..errors import AlignmentError, input_error
+from . import _kernels as K
+from .evidence import build_alignment
+from .resample import max_new_rows, new_resampler_state, resample_chunk
+
+if TYPE_CHECKING:
+    from .engine import Alignment, AlignmentEngine
+
+__all__ = ["StreamingAligner"]
+
+
+def _as_curves(values, n_curves: int, what: str) -> np.ndarray:
+    x = np.asarray(values, dtype=float)
+    if x.ndim == 1 and n_curves == 1:
+        x = x[:, None]
+    if x.ndim != 2 or x.shape[1] != n_curves:
+        raise input_error(f"{what} curves must have shape (N, {n_curves})", value=x.shape,
+                          fix="pass the same curves, in the same order, as the reference")
+    return x
+
+
+class _Grow:
+    """Growable 1-D/2-D buffer (capacity doubling) for O(N) per-row and per-sample arrays."""
+
+    def __init__(self, tail: tuple, dtype) -> None:
+        self.a = np.zeros((64,) + tail, dtype=dtype)
+
+    def ensure(self, n: int) -> np.ndarray:
+        if n > self.a.shape[0]:
+            new = np.zeros((max(n, 2 * self.a.shape[0]),) + self.a.shape[1:], self.a.dtype)
+            new[: self.a.shape[0]] = self.a
+            self.a = new
+        return self.a
+
+
+class StreamingAligner:
+    """Row-at-a-time forward pass of an :class:`AlignmentEngine` (a well being drilled).
+
+    ``push`` standardises and resamples new samples and runs the DP over every completed row;
+    ``current`` returns the optimal alignment of everything pushed so far (the unfinished last
+    row included, without committing it). Pushing a whole well and pushing it sample by sample
+    give identical results.
+    """
+
+    def __init__(self, engine: AlignmentEngine, center, scale) -> None:
+        self.engine = engine
+        p = engine._prepared()
+        self._p = p
+        nc = p["n_curves"]
+        self.center = np.zeros(nc) if center is None else np.broadcast_to(
+            np.asarray(center, float), (nc,)).copy()
+        self.scale = np.ones(nc) if scale is None else np.broadcast_to(
+            np.asarray(scale, float), (nc,)).copy()
+        if np.any(~(self.scale > 0)):
+            raise input_error("scale must be positive", value=self.scale.tolist())
+        m = p["ref_t"].shape[1]
+        width = m + 2 * p["pad"]
+        self._F = np.full((p["nb"], width), np.inf)
+        self._E = np.full((p["nb"], width), np.inf)
+        self._st, self._acc = new_resampler_state(nc)
+        self._z = _Grow((nc,), float)       # standardised well samples
+        self._spos = _Grow((), float)
+        self._srow = _Grow((), np.int64)
+        self._rows = _Grow((nc,), float)
+        self._meta = _Grow((5,), float)
+        self._Rr = _Grow((), np.int64)
+        self._sig = _Grow((), np.int64)
+        self._run = _Grow((), np.int64)
+        self._rowmin = _Grow((), float)
+        self._rowarg = _Grow((), np.int64)
+        self._rowmean = _Grow((), float)
+        self._block_rows = int(np.clip(2**22 // m, 16, 4096))
+        self._blocks: list[np.ndarray] = []
+        self.n_samples = 0
+        self.n_rows = 0
+
+    # -- forward ------------------------------------------------------------------------------
+    def push(self, values, step) -> None:
+        """Add one sample (``values`` (C,), scalar ``step``) or several ((n, C), (n,))."""
+        p = self._p
+        x = np.asarray(values, dtype=float)
+        s = np.atleast_1d(np.asarray(step, dtype=float)).ravel()
+        if x.ndim <= 1 and s.shape[0] == 1 and x.size == p["n_curves"]:
+            x = x.reshape(1, -1)
+        x = _as_curves(x, p["n_curves"], "well")
+        if s.shape[0] != x.shape[0] or not np.all(np.isfinite(s)):
+            raise input_error("step must be finite, one value per pushed sample",
+                              value=s.shape[0], fix="pass the predicted strat increments")
+        n = x.shape[0]
+        if n == 0:
+            return
+        z = np.ascontiguousarray((x - self.center) / self.scale if self.engine.standardise
+                                 else x)
+        n0 = self.n_samples
+        self._z.ensure(n0 + n)[n0 : n0 + n] = z
+        r0 = self.n_rows
+        cap = r0 + max_new_rows(s, self.engine.min_rate)
+        rows, meta = self._rows.ensure(cap), self._meta.ensure(cap)
+        spos, srow = self._spos.ensure(n0 + n), self._srow.ensure(n0 + n)
+        r1 = resample_chunk(z, np.ascontiguousarray(s), float(self.engine.min_rate), self._st,
+                            self._acc, rows, meta, spos, srow, False)
+        self.n_samples = n0 + n
+        self._advance(r0, r1)
+        self.n_rows = r1
+
+    def _row_geometry(self, r0: int, r1: int) -> None:
+        K.row_geometry(self._meta.a, r0, r1, self._Rr.ensure(r1), self._sig.ensure(r1),
+                       self._run.ensure(r1))
+
+    def _advance(self, r0: int, r1: int, codes_out: list | None = None) -> None:
+        """Run the DP over rows r0..r1-1 (into the code blocks, or into ``codes_out``)."""
+        if r1 <= r0:
+            return
+        self._row_geometry(r0, r1)
+        for buf in (self._rowmin, self._rowarg, self._rowmean):
+            buf.ensure(r1)
+        p, e = self._p, self.engine
+        r = r0
+        while r < r1:
+            if codes_out is None:
+                b = r // self._block_rows
+                while len(self._blocks) <= b:
+                    self._blocks.append(np.empty((self._block_rows, p["ref_t"].shape[1]),
+                                                 np.uint8))
+                blk, row0 = self._blocks[b], b * self._block_rows
+                rend = min(r1, row0 + self._block_rows)
+            else:
+                blk = np.empty((r1 - r, p["ref_t"].shape[1]), np.uint8)
+                row0, rend = r, r1
+                codes_out.append((row0, blk))
+            K.forward_rows(r, rend, 0, -1, 0, p["lo_t"].shape[1], self._rows.a, p["lo_t"],
+                           p["hi_t"], p["ref_nan"], p["w"], p["kind"],
+                           float(e.huber_delta), float(e.null_misfit), self._Rr.a, self._sig.a,
+                           self._run.a, p["bf"], p["bs"], float(e.jump_penalty),
+                           float(e.strain_penalty), self._F, self._E, self._rowmin.a,
+                           self._rowarg.a, self._rowmean.a, blk, row0)
+            r = rend
+
+    # -- result -------------------------------------------------------------------------------
+    def current(self) -> Alignment:
+        """The optimal alignment of all samples pushed so far."""
+        return self._result(evidence=True)
+
+    def _result(self, evidence: bool) -> Alignment:
+        if self.n_samples == 0:
+            raise AlignmentError("no well samples pushed yet; push(values, step) first")
+        p = self._p
+        extra: list = []
+        nrows = self.n_rows
+        if self._st[0] > 0.0:  # unfinished last row: emit it on copies, run it uncommitted
+            st, acc = self._st.copy(), self._acc.copy()
+            rows, meta = self._rows.ensure(nrows + 1), self._meta.ensure(nrows + 1)
+            nrows = resample_chunk(np.empty((0, p["n_curves"])), np.empty(0),
+                                   float(self.engine.min_rate), st, acc, rows, meta,
+                                   self._spos.a, self._srow.a, True)
+            self._advance(self.n_rows, nrows, extra)
+        blocks = [(i * self._block_rows, b) for i, b in enumerate(self._blocks)] + extra
+        return build_alignment(self, nrows, blocks, evidence)
