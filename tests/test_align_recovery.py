@@ -109,3 +109,15 @@ def test_recovery_rate_over_many_random_wells():
                     s[sample] - s[sample - 1])
     assert total == 36
     assert hits >= 32 and inside >= 35 and sized >= 35, (hits, inside, sized)
+
+
+def test_a_well_unrelated_to_the_type_log_gets_no_confident_cut():
+    """Jumps between chance matches in a well that does not match the type log at all."""
+    for rng, ref in fields(300):
+        noise = np.convolve(rng.normal(size=500), np.ones(3) / 3, "same")
+        al = AlignmentEngine(ref).align(noise, np.ones(500))
+        assert al.correlation < 0.75
+        assert all(j.confidence < 0.5 for j in al.jumps)
+        s0, cuts, n = CASES[1.0]
+        well, steps, s = synthetic_well(ref, 1.0, s0, cuts, n, rng)
+        assert AlignmentEngine(ref).align(well, steps).correlation > 0.9

@@ -68,7 +68,12 @@ near its cell at the window end) give the best cost with one jump landing on eac
 window — ``bracket``: the rows where it costs at most ``bracket_tolerance`` more than the best —
 and the best cost with no jump in the window. ``margin`` = no-jump cost − best one-jump cost
 (the jump penalty included): the evidence that a cut, not stretch, explains the window;
-``confidence = 1/(1 + exp(−margin/confidence_scale))`` (to be calibrated on a benchmark set).
+``confidence = 1/(1 + exp(−margin/confidence_scale))`` times a ramp (0 at ``correlation_floor``,
+1 at ``correlation_full``) of the smaller of the well/type-log correlations along the path
+above and below the cut over the same window: the margin only compares explanations of the
+window, so a well that does not match the type log at all (where jumps are cheap moves
+between chance matches, whose correlations stay below about 0.7 in tests) must not get confident
+cuts. Both are to be calibrated on a benchmark set.
 ``size`` is the difference of straight lines fitted to the path's lag on either side
 (evaluated at the cut), which removes the one-sample quantisation and the lag the path may
 carry into a jump.
@@ -137,7 +142,10 @@ class Jump:
         to the lag on either side (module docstring). Missing section when its sign equals
         the direction of travel, repeated when opposite.
     margin : evidence for the cut (see module docstring) [misfit units].
-    confidence : logistic of margin / confidence_scale, in [0, 1].
+    correlation : the smaller, above and below the cut, of the correlation between the well and
+        the type log read along the path over the evidence window — is there a match at all?
+    confidence : in [0, 1]: logistic(margin / confidence_scale) times a ramp of
+        ``correlation`` from ``correlation_floor`` (0) to ``correlation_full`` (1).
     bracket : (first, last) well sample that may be the first below the cut (placements
         costing at most ``bracket_tolerance`` more than the best).
     """
@@ -148,6 +156,7 @@ class Jump:
     j_after: float
     size: float
     margin: float
+    correlation: float
     confidence: float
     bracket: tuple[int, int]
 
@@ -163,6 +172,9 @@ class Alignment:
     jumps : the jumps of the path, in well order.
     confidence : (N,) float in [0, 1] — local fit quality: 1 − misfit at the path / mean misfit
         of the row, smoothed over ``smooth_rows`` rows.
+    correlation : correlation between the whole well and the type log read along the path
+        (weighted mean over curves): low values mean the well does not match the type log and
+        its jumps mean little.
     row_path : (R,) int — reference column of each DP row.
     sample_row : (N,) int — DP row of each well sample.
     center, scale : (C,) — the well standardisation used.
@@ -172,6 +184,7 @@ class Alignment:
     score: float
     jumps: tuple[Jump, ...]
     confidence: np.ndarray
+    correlation: float
     row_path: np.ndarray
     sample_row: np.ndarray
     center: np.ndarray
@@ -204,6 +217,8 @@ class AlignmentEngine:
     calibrate_passes, calibrate_factor : well standardisation matched to the covered part of
         the type log (:meth:`calibrate`); 0 passes = the well's own median and spread.
     evidence_rows, bracket_tolerance, confidence_scale : cut evidence (module docstring).
+    correlation_floor, correlation_full : a cut's confidence is scaled by a ramp of its
+        correlation (:class:`Jump`) from 0 at the floor to 1 at full.
     smooth_rows : int — half-width of the smoothing of the local confidence [rows].
     """
 
@@ -226,6 +241,8 @@ class AlignmentEngine:
         evidence_rows: int = 200,
         bracket_tolerance: float = 1.0,
         confidence_scale: float = 2.0,
+        correlation_floor: float = 0.6,
+        correlation_full: float = 0.9,
         smooth_rows: int = 5,
     ) -> None:
         self.ref = ref
@@ -244,6 +261,8 @@ class AlignmentEngine:
         self.evidence_rows = evidence_rows
         self.bracket_tolerance = bracket_tolerance
         self.confidence_scale = confidence_scale
+        self.correlation_floor = correlation_floor
+        self.correlation_full = correlation_full
         self.smooth_rows = smooth_rows
         self._check()
 
@@ -268,6 +287,9 @@ class AlignmentEngine:
         for name in ("strain_penalty", "null_misfit", "bracket_tolerance"):
             if not float(getattr(self, name)) >= 0:
                 raise input_error(f"{name} must be >= 0", value=getattr(self, name))
+        if not 0 <= float(self.correlation_floor) < float(self.correlation_full) <= 1:
+            raise input_error("need 0 <= correlation_floor < correlation_full <= 1",
+                              value=(self.correlation_floor, self.correlation_full))
         if not 0 < float(self.min_rate) <= 1:
             raise input_error("min_rate outside (0, 1]", value=self.min_rate)
         check_misfit(self.misfit)

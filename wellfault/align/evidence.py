@@ -68,6 +68,37 @@ def _path_misfit(x, path, p, kind, delta, null_misfit) -> np.ndarray:
     return out
 
 
+def _correlation(z: np.ndarray, pos: np.ndarray, ref_t: np.ndarray, w: np.ndarray) -> float:
+    """Weighted mean over curves of the Pearson correlation between standardised well samples
+    ``z`` (n, C) and the type log read at their positions; NaN with fewer than 5 samples."""
+    if z.shape[0] < 5:
+        return math.nan
+    m = ref_t.shape[1]
+    q = np.clip(pos, 0.0, m - 1.0)
+    i0 = np.minimum(np.floor(q).astype(np.int64), m - 2)
+    f = q - i0
+    num = den = 0.0
+    for c in range(z.shape[1]):
+        y = ref_t[c, i0] * (1 - f) + ref_t[c, i0 + 1] * f
+        ok = ~np.isnan(z[:, c]) & ~np.isnan(y)
+        if ok.sum() < 5:
+            continue
+        a, b = z[ok, c] - z[ok, c].mean(), y[ok] - y[ok].mean()
+        sab = math.sqrt(float(a @ a) * float(b @ b))
+        if sab > 0:
+            num += w[c] * float(a @ b) / sab
+            den += w[c]
+    return num / den if den > 0 else math.nan
+
+
+def _confidence(margin: float, corr: float, e) -> float:
+    """logistic(margin / confidence_scale) × ramp of the correlation from floor to full."""
+    x = max(min(margin / float(e.confidence_scale), 700.0), -700.0) if margin == margin else 0
+    lo, hi = float(e.correlation_floor), float(e.correlation_full)
+    ramp = 0.0 if not corr == corr else min(max((corr - lo) / (hi - lo), 0.0), 1.0)
+    return ramp / (1.0 + math.exp(-x)) if margin == margin else math.nan
+
+
 def _landing_at_or_after(landing: np.ndarray, lo: int, hi: int) -> int:
     for r in range(lo, hi + 1):
         if landing[r]:
@@ -187,7 +218,7 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
 
     jump_rows = np.flatnonzero(jumped)
     W = int(e.evidence_rows)
-    jumps = []
+    found = []
     for q, r in enumerate(jump_rows):
         r = int(r)
         prev_r = int(jump_rows[q - 1]) if q > 0 else 0
@@ -222,10 +253,19 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
         b_hi = int(np.searchsorted(srow, hi, "left"))
         bracket = (min(b_lo, cut), min(max(b_hi, cut), n - 1))
         size = _fitted_size(lag_row, r, prev_r, next_r, W)
-        conf = 1.0 / (1.0 + math.exp(-max(min(margin / float(e.confidence_scale), 700), -700)))
+        found.append((cut, r, size, float(margin), bracket, a, zz))
+
+    # correlation with the type log on either side, once every cut has been placed
+    jumps = []
+    for cut, r, size, margin, bracket, a, zz in found:
+        above = slice(int(np.searchsorted(srow, a, "left")), cut)
+        below = slice(cut, int(np.searchsorted(srow, zz, "right")))
+        corr = min(_correlation(z[above], pos[above], p["ref_t"], p["w"]),
+                   _correlation(z[below], pos[below], p["ref_t"], p["w"]))
+        conf = _confidence(margin, corr, e)
         jumps.append(Jump(sample=cut, row=r, j_before=float(pos[cut - 1]) if cut > 0 else
-                          float("nan"), j_after=float(pos[cut]), size=size,
-                          margin=float(margin), confidence=conf, bracket=bracket))
+                          float("nan"), j_after=float(pos[cut]), size=size, margin=margin,
+                          correlation=corr, confidence=conf, bracket=bracket))
 
     # local fit quality per row, smoothed, then per sample
     epath = _path_misfit(al._rows.a[:nrows], path, p, kind, delta, nm)
@@ -240,5 +280,5 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
         den = np.convolve(np.ones(nrows), ker, "same")
         qual = num / den
     return Alignment(path=pos, score=score, jumps=tuple(jumps), confidence=qual[srow],
-                     row_path=path, sample_row=srow, center=al.center.copy(),
-                     scale=al.scale.copy())
+                     correlation=_correlation(z, pos, p["ref_t"], p["w"]), row_path=path,
+                     sample_row=srow, center=al.center.copy(), scale=al.scale.copy())
