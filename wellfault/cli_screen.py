@@ -1,0 +1,146 @@
+"""``wellfault screen``: every well of a field, its cuts, the failures and the faults.
+
+Registered in :mod:`wellfault.cli` with :func:`add_screen_parser` (the sub-command) and
+:func:`cmd_screen` (its action). Also runnable alone: ``python -m wellfault.cli_screen ...``.
+
+Exit codes: 0 every well ran, 1 some wells failed (they are in ``errors.csv``), 2 bad usage or
+bad input (raised as :class:`~wellfault.errors.InputError`; ``wellfault.cli.main`` prints it on
+one line).
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import warnings
+
+from . import CAUTION
+from .errors import InputError, WellfaultError, WellfaultWarning
+
+__all__ = ["add_screen_parser", "cmd_screen", "main"]
+
+EXIT_OK, EXIT_SOME_FAILED, EXIT_BAD_INPUT = 0, 1, 2
+
+
+def add_screen_parser(subparsers) -> argparse.ArgumentParser:
+    """Add the ``screen`` sub-command to ``subparsers`` (from ``add_subparsers``)."""
+    p = subparsers.add_parser(
+        "screen", help="screen every well of a field and assemble the cuts into faults",
+        description="Screen every well listed in a manifest for fault cuts (tops evidence "
+                    "against the thickness predicted from neighbouring wells, or against the "
+                    "reference column), group the cuts into faults with fitted planes, and "
+                    "write cuts, errors, wells, faults and fault_profiles tables into --out. "
+                    "A failing well is recorded in errors and never stops the rest. " + CAUTION)
+    p.add_argument("manifest", metavar="MANIFEST.csv",
+                   help="one row per well: well, las, survey, tops (paths relative to the "
+                        "manifest), x_m, y_m, elevation_m, optional dip (8/070 or a dip "
+                        "table) and depth_unit")
+    p.add_argument("--column", metavar="COLUMN.csv",
+                   help="reference column: surface, thickness_<unit> [, unconformity]")
+    p.add_argument("--type-well", metavar="TYPE.las",
+                   help="type well for curve evidence (accepted; curve evidence is not wired "
+                        "into screening yet, wells are screened by tops)")
+    p.add_argument("--type-tops", metavar="TYPE_TOPS.csv", help="the type well's tops")
+    p.add_argument("--curve", action="append", metavar="NAME[:WEIGHT]",
+                   help="curve to align (repeatable; accepted, see --type-well)")
+    p.add_argument("--dip", metavar="DIP/AZI",
+                   help="bed dip for wells without their own in the manifest, e.g. 12/075")
+    p.add_argument("--out", metavar="DIR", required=True,
+                   help="folder for cuts, errors, wells, faults and fault_profiles tables "
+                        "(created if needed) and the per-well checkpoint (.wells/)")
+    p.add_argument("--format", choices=["csv", "parquet"], default="csv",
+                   help="table format (default csv)")
+    p.add_argument("--workers", type=int, metavar="N",
+                   help="worker processes (default: all cores; 1 runs in this process)")
+    p.add_argument("--scheduler", metavar="ADDRESS",
+                   help="run on this Dask scheduler (e.g. tcp://10.0.0.5:8786) instead of a "
+                        "local process pool")
+    p.add_argument("--resume", action="store_true",
+                   help="skip the wells already finished in --out (after an interruption)")
+    p.add_argument("--output-unit", choices=["m", "ft"], default="m",
+                   help="length unit of the tables (default m)")
+    p.add_argument("--depth-unit", choices=["m", "ft", "usft"],
+                   help="depth unit of files that state none (the manifest's depth_unit "
+                        "column wins for its well)")
+    p.add_argument("--no-neighbours", action="store_true",
+                   help="compare with the reference column only (one pass), not with the "
+                        "thickness predicted from neighbouring wells")
+    p.add_argument("--tolerance", type=float, default=0.15, metavar="FRACTION",
+                   help="relative thickness tolerance against the column (default 0.15)")
+    p.add_argument("--tolerance-floor", type=float, default=2.0, metavar="METRES",
+                   help="absolute thickness tolerance floor in metres (default 2)")
+    p.add_argument("--no-faults", action="store_true",
+                   help="do not group the cuts into faults")
+    p.add_argument("--no-progress", action="store_true", help="no progress bar")
+    p.set_defaults(func=cmd_screen)
+    return p
+
+
+def cmd_screen(args) -> int:
+    """Run ``wellfault screen``; returns the exit code (0 all ran, 1 some failed)."""
+    from .screen import screen_wells
+    from .topcuts import TopsTolerance
+
+    if args.column is None:
+        raise InputError("no reference column: give --column COLUMN.csv")
+    if args.workers is not None and args.workers < 1:
+        raise InputError(f"--workers must be at least 1 (got {args.workers})")
+    client = None
+    if args.scheduler:
+        try:
+            from distributed import Client
+        except ImportError:
+            raise InputError("--scheduler needs dask.distributed; install it (pip install "
+                             "'wellfault[cluster]') or run without --scheduler") from None
+        try:
+            client = Client(args.scheduler, timeout="20s")
+        except (OSError, TimeoutError) as err:
+            raise InputError(f"cannot reach the Dask scheduler at {args.scheduler!r} ({err}); "
+                             "check the address, or run without --scheduler") from None
+    try:
+        result = screen_wells(
+            args.manifest, args.column, bed_dip=args.dip,
+            tolerance=TopsTolerance(args.tolerance, args.tolerance_floor),
+            type_well=args.type_well, type_tops=args.type_tops, curves=args.curve,
+            neighbours=not args.no_neighbours, fit=not args.no_faults,
+            depth_unit=args.depth_unit, unit=args.output_unit, workers=args.workers,
+            client=client, progress=not args.no_progress, out_dir=args.out,
+            fmt=args.format, resume=args.resume)
+    finally:
+        if client is not None:
+            client.close()
+    print(result.summary(), file=sys.stderr)
+    print(f"tables written to {args.out}: " + ", ".join(
+        f"{n}.{args.format}" for n in ("cuts", "errors", "wells", "faults", "fault_profiles")),
+        file=sys.stderr)
+    print(CAUTION, file=sys.stderr)
+    return EXIT_SOME_FAILED if result.n_failed else EXIT_OK
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Stand-alone entry (``python -m wellfault.cli_screen``), with ``wellfault``'s exit codes."""
+    parser = argparse.ArgumentParser(prog="wellfault")
+    sub = parser.add_subparsers(dest="command")
+    add_screen_parser(sub)
+    argv = list(sys.argv[1:] if argv is None else argv)
+    if not argv or argv[0] != "screen":
+        argv = ["screen", *argv]
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # argparse: usage errors exit 2, --help exits 0
+        return int(exc.code or 0)
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", WellfaultWarning)
+            code = args.func(args)
+        for w in caught:
+            if issubclass(w.category, WellfaultWarning):
+                print(f"wellfault: warning: {w.message}", file=sys.stderr)
+        return code
+    except WellfaultError as err:
+        print(f"wellfault: error: {err}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())
