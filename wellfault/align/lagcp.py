@@ -18,6 +18,15 @@ from the raw (unfiltered) lag track as ``MAD(diff)/(0.6745·√2)`` and floored 
 lag is an integer); ``c = 3`` by default (c = 1 over-segments, c = 2..4 recover the true steps
 in the ruptures experiment of §6.2). Steps smaller than ``min_step`` samples are not reported.
 
+Limits (measured): each window is compared with every reference position at one lag, with no
+stretch inside the window and no continuity between windows. On the recovery cases of
+tests/test_align_lagcp.py (800-sample blocky type logs, thickness change within ±10 %) it
+finds the cuts to about one hop with sizes within 25 %; on long blocky type logs (the
+2,000-20,000-sample cases of benchmarks/bench_engine.py, 10 % thinner than predicted) chance
+matches of the short windows dominate and it does not recover the cuts. Cost grows as
+(windows × M log M): about 40 s at N = M = 20,000. A tracked or Viterbi-smoothed lag (best
+few positions per window, penalised changes) is the next step; until then use the engine.
+
 References
 ----------
 .. [1] R. Killick, P. Fearnhead and I. A. Eckley, "Optimal detection of changepoints with a
