@@ -82,6 +82,7 @@ class _Sampler:
         self.every = every
         self.peak_worker = 0
         self.peak_tree = 0
+        self.cpu: dict[int, float] = {}
         self._stop = threading.Event()
         self._t = threading.Thread(target=self._run, daemon=True)
 
@@ -95,6 +96,8 @@ class _Sampler:
                 for k in kids:
                     try:
                         rss.append(k.memory_info().rss)
+                        t = k.cpu_times()
+                        self.cpu[k.pid] = t.user + t.system
                     except psutil.Error:
                         pass
                 if rss:
@@ -120,6 +123,7 @@ def run_one(args) -> dict:
     field = json.loads(args.field)
     client = cluster = None
     start_s = 0.0
+    load0 = os.getloadavg()[0]
     with _Sampler() as sampler:
         if args.mode == "dask":
             from distributed import Client, LocalCluster
@@ -130,10 +134,13 @@ def run_one(args) -> dict:
             client = Client(cluster)
             start_s = time.perf_counter() - t0
         t0 = time.perf_counter()
+        cpu0 = time.process_time()
+        kids0 = sum(sampler.cpu.values())
         out = Path(tempfile.mkdtemp(prefix="bench-screen-out-"))
         res = screen_wells(field["manifest"], field["column"], workers=args.workers,
                            client=client, progress=False, out_dir=out)
         secs = time.perf_counter() - t0
+        cpu = time.process_time() - cpu0 + sum(sampler.cpu.values()) - kids0
         if client is not None:
             client.close()
             cluster.close()
@@ -146,6 +153,7 @@ def run_one(args) -> dict:
         "cuts": int(len(res.cuts)), "wells_with_cuts": wells_cut,
         "faults": int((res.faults["kind"] == "fault").sum()) if len(res.faults) else 0,
         "failed": int(len(res.errors)), "timings": res.info["timings"],
+        "cpu_s": cpu, "load": (load0 + os.getloadavg()[0]) / 2,
     }
 
 
@@ -182,8 +190,8 @@ def main() -> None:
             print(f"  {mode:>4} x{workers}: {row['seconds']:6.1f} s", flush=True)
     print()
     head = (f"{'wells':>6} {'run':<12} {'seconds':>8} {'wells/s':>8} {'speed-up':>8} "
-            f"{'main MB':>8} {'worker MB':>9} {'cuts':>6} {'wells cut':>9} {'faults':>6} "
-            f"{'failed':>6}")
+            f"{'CPU s':>7} {'ms/well':>7} {'main MB':>8} {'worker MB':>9} {'cuts':>6} "
+            f"{'wells cut':>9} {'faults':>6} {'failed':>6} {'load':>5}")
     print(head)
     print("-" * len(head))
     for r in rows:
@@ -193,8 +201,9 @@ def main() -> None:
         name = ("serial" if r["workers"] == 1 else f"pool x{r['workers']}") \
             if r["mode"] == "pool" else f"dask x{r['workers']}"
         print(f"{r['n']:>6} {name:<12} {r['seconds']:8.1f} {r['wells_per_s']:8.0f} "
-              f"{speed:8.2f} {r['main_maxrss_mb']:8.0f} {r['worker_peak_mb']:9.0f} "
-              f"{r['cuts']:>6} {r['wells_with_cuts']:>9} {r['faults']:>6} {r['failed']:>6}")
+              f"{speed:8.2f} {r['cpu_s']:7.1f} {1000 * r['cpu_s'] / r['n']:7.2f} "
+              f"{r['main_maxrss_mb']:8.0f} {r['worker_peak_mb']:9.0f} {r['cuts']:>6} "
+              f"{r['wells_with_cuts']:>9} {r['faults']:>6} {r['failed']:>6} {r['load']:5.1f}")
     print()
     for r in rows:
         t = r["timings"]
@@ -203,8 +212,10 @@ def main() -> None:
               f"re-measure {t.get('remeasure', 0):.1f} s"
               + (f"; cluster start-up {r['start_s']:.1f} s (not counted)" if r["mode"] == "dask"
                  else ""))
-    print("\n'serial' is workers=1 (in-process); main MB is the main process's peak RSS, "
-          "worker MB the largest worker's peak RSS (psutil, sampled).")
+    print("\n'serial' is workers=1 (in-process); CPU s is the CPU time of the main process and "
+          "its workers (sampled, psutil); main MB is the main process's peak RSS, worker MB the "
+          "largest worker's peak RSS (sampled); load is the machine's 1-minute load average "
+          "during the run (other work on the 2 cores slows the wall-clock figures).")
     print("curves: pending engine wiring (500 wells by curves not measured)")
 
 

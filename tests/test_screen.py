@@ -387,3 +387,18 @@ def test_checkpoint_lines_are_json(small_field, tmp_path):
     for line in (tmp_path / ".wells" / "thickness.jsonl").read_text().splitlines():
         rec = json.loads(line)
         assert {"p", "i", "s", "e", "iv"} <= set(rec)
+
+
+def test_shortcuts_change_nothing(small_field, serial_result, monkeypatch):
+    """Wells judged clean from pass 1 (no second reading) or by the worker's pre-test would
+    show no cut in find_cuts_from_tops either: switching both off gives the same tables."""
+    man, column, _ = small_field
+    every = {t: True for t in range(70)}
+    monkeypatch.setattr(screen_mod, "_dirty_wells",
+                        lambda col, pairs, tn, tc: (set(every), set(pairs[0].tolist())))
+    monkeypatch.setattr(screen_mod, "_clean_by_tops", lambda *a, **k: False)
+    _same(serial_result, screen_wells(man, column, workers=1, progress=False))
+    plain = screen_wells(man, column, workers=1, progress=False, neighbours=False, fit=False)
+    monkeypatch.undo()
+    _same(plain, screen_wells(man, column, workers=1, progress=False, neighbours=False,
+                              fit=False))

@@ -41,6 +41,7 @@ import re
 import sys
 import time
 import warnings
+from collections import defaultdict
 from collections.abc import Callable, Iterable, Iterator
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from dataclasses import dataclass, field
@@ -351,10 +352,14 @@ def _header_well(inp: _Inputs):
                 source="<manifest>")
 
 
-def _detect(cfg: _Config, inp: _Inputs, expected, tol, planes) -> list[FaultCut]:
+def _detect(cfg: _Config, inp: _Inputs, expected, tol, planes, precheck=True
+            ) -> list[FaultCut]:
     """Cuts of one well (metres). With curve settings (``cfg.curves``) the well's curves are
-    aligned too (the alignment engine, through ``detect.analyse_well(curves=...)``)."""
-    if cfg.curves is None and inp.bed_dip.is_constant:
+    aligned too (the alignment engine, through ``detect.analyse_well(curves=...)``).
+
+    ``precheck``: first test whether tops evidence certainly finds nothing (skipped when the
+    main process already knows the well has something to show)."""
+    if precheck and cfg.curves is None:
         idx, _md, drilled, _mid = _pick_geometry(cfg, inp)
         if _clean_by_tops(cfg, idx, drilled, expected, tol):
             return []
@@ -365,8 +370,9 @@ def _detect(cfg: _Config, inp: _Inputs, expected, tol, planes) -> list[FaultCut]
         from .measure import FaultAssumptions
         from .topcuts import find_cuts_from_tops
 
+        # well=None: the frame holds this well's picks only (no filtering by name needed)
         return find_cuts_from_tops(inp.picks.frame(), cfg.column, inp.trajectory,
-                                   bed_dip=inp.bed_dip, well=inp.task.well,
+                                   bed_dip=inp.bed_dip, well=None,
                                    assumptions=FaultAssumptions(planes=planes), tolerance=tol,
                                    expected=expected)
     from .detect import analyse_well
@@ -406,9 +412,9 @@ def _run_one(cfg: _Config, kind: str, task: WellTask, extra) -> dict:
                 out["iv"] = [idx[:-1].tolist(), idx[1:].tolist(), drilled.tolist(),
                              mid[:, 0].tolist(), mid[:, 1].tolist()]
             else:
-                expected, tol, by, planes = extra
+                expected, tol, by, planes, precheck = extra
                 stage["file"] = task.tops
-                cuts = _detect(cfg, inp, expected, tol, planes)
+                cuts = _detect(cfg, inp, expected, tol, planes, precheck)
                 out["c"] = [_cut_dict(c) for c in cuts]
                 out["b"] = _brackets(inp, cuts)
                 out["by"] = by
@@ -984,8 +990,10 @@ def screen_wells(
     seconds = np.zeros(n)
     n_picks = np.zeros(n, dtype=np.int64)
     errors: dict[int, list] = {}
-    warns: dict[int, list[str]] = {i: [] for i in range(n)}
-    intervals: dict[int, list] = {}
+    warns: dict[int, list[str]] = defaultdict(list)
+    # pass 1, per well: one (5, n) array of column index above, below, drilled TST, x, y
+    intervals: dict[int, np.ndarray] = {}
+    checked_by = np.full(n, "", dtype=object)
     cut_out: dict[int, dict] = {}
     timings: dict[str, float] = {}
 
@@ -1003,9 +1011,11 @@ def screen_wells(
                 errors.setdefault(i, o["e"])
             return
         if o["p"] == "thickness":
-            intervals[i] = o["iv"]
+            intervals[i] = np.asarray(o["iv"], dtype=float).reshape(5, -1)
         elif o["p"] == "detect":
-            cut_out[i] = {"c": o["c"], "b": o["b"], "by": o["by"]}
+            checked_by[i] = o["by"]
+            if o["c"]:
+                cut_out[i] = {"c": o["c"], "b": o["b"]}
         else:  # remeasure: replace the cuts of fitted faults, keep the others
             cut_out[i]["re"] = {"c": o["c"], "b": o["b"]}
 
@@ -1024,6 +1034,7 @@ def screen_wells(
             # ---------------------------------------------------------------- pass 1
             model = None
             tol_n = None
+            pairs = None
             if neighbours:
                 t0 = time.perf_counter()
                 done = ckpt.loaded["thickness"] if ckpt is not None else {}
@@ -1032,8 +1043,8 @@ def screen_wells(
                 todo = [t for t in tasks if t.index not in done]
                 runner.run("thickness", ((t, None) for t in todo), len(todo),
                            "pass 1/2 thickness", handler("thickness"))
-                model, flat = _neighbour_model(col, intervals, neighbour_k,
-                                               max_neighbour_distance_m)
+                model, flat, pairs = _neighbour_model(col, intervals, neighbour_k,
+                                                      max_neighbour_distance_m)
                 tol_n = neighbour_tolerance or _auto_tolerance(model, tolerance,
                                                                NEIGHBOUR_TOLERANCE)
                 info["neighbour_tolerance"] = dataclasses.asdict(tol_n)
@@ -1045,14 +1056,14 @@ def screen_wells(
             def extra_for(i: int) -> tuple:
                 if i in extras:
                     return extras[i]
+                plain = (None, tolerance, "tops", (), model is None)
                 if model is None or i not in intervals:
-                    return (None, tolerance, "tops", ())
-                ia, ib = intervals[i][0], intervals[i][1]
+                    return plain
+                ia = intervals[i][0].astype(np.int64)
+                ib = intervals[i][1].astype(np.int64)
                 exp = flat.get(i)
-                if exp is None or not len(ia):
-                    return (None, tolerance, "tops", ())
-                if not np.all(np.isfinite(exp)):
-                    return (None, tolerance, "tops", ())
+                if exp is None or not len(ia) or not np.all(np.isfinite(exp)):
+                    return plain
                 names = col.names
                 expected: dict = {}
                 for a, b, v in zip(ia, ib, exp):
@@ -1060,7 +1071,7 @@ def screen_wells(
                     if a != b:
                         expected.setdefault(key, []).append(float(v))
                 expected = {k: sum(v) / len(v) for k, v in expected.items()}
-                return (expected, tol_n, "tops+neighbours", ())
+                return (expected, tol_n, "tops+neighbours", (), False)
 
             done2 = ckpt.loaded["detect"] if ckpt is not None else {}
             for rec in done2.values():
@@ -1070,15 +1081,14 @@ def screen_wells(
             if model is not None and cfg.curves is None:
                 # pass 1 measured every interval: wells that tops evidence certainly finds
                 # clean need no second reading (the same test find_cuts_from_tops makes)
+                dirty, neigh = _dirty_wells(col, pairs, tol_n, tolerance)
                 rest = []
                 for t in todo2:
-                    ia, ib, drilled = intervals[t.index][:3]
-                    expected, tl, by, _p = extra_for(t.index)
-                    idx = np.asarray(list(ia) + list(ib[-1:]), dtype=np.int64)
-                    if _clean_by_tops(cfg, idx, np.asarray(drilled, float), expected, tl):
-                        cut_out[t.index] = {"c": [], "b": [], "by": by}
-                    else:
+                    if t.index in dirty:
                         rest.append(t)
+                    else:
+                        checked_by[t.index] = "tops+neighbours" if t.index in neigh \
+                            else "tops"
                 todo2 = rest
             runner.run("detect", ((t, extra_for(t.index)) for t in todo2), len(todo2),
                        "pass 2/2 detection" if neighbours else "detection",
@@ -1090,7 +1100,7 @@ def screen_wells(
             cuts_m = _cut_frame(records, brackets)
             fmap = None
             if fit and len(cuts_m):
-                crossing = _crossing_counts(col, intervals) if intervals else None
+                crossing = _crossing_counts(col, pairs) if model is not None else None
                 fmap = fit_faults(cuts_m, options=fault_options, column=col,
                                   crossing_counts=crossing)
             timings["faults"] = time.perf_counter() - t0
@@ -1112,8 +1122,9 @@ def screen_wells(
                          if i not in done3 and i not in errors]
 
                 def extra3(i):
-                    e, tl, by, _p = extra_for(i)
-                    return (e, tl, by, tuple(sorted(planes_by_well[i], key=lambda p: p.name)))
+                    e, tl, by, _p, _c = extra_for(i)
+                    return (e, tl, by, tuple(sorted(planes_by_well[i], key=lambda p: p.name)),
+                            False)
 
                 runner.run("remeasure", ((t, extra3(t.index)) for t in todo3), len(todo3),
                            "re-measure with fitted faults", handler("remeasure"))
@@ -1149,7 +1160,7 @@ def screen_wells(
     for t in tasks:
         i = t.index
         failed = i in errors
-        by = "" if failed else cut_out.get(i, {}).get("by", "tops")
+        by = "" if failed else (checked_by[i] or "tops")
         well_rows.append({
             "well": t.well, "status": "failed" if failed else "ok", "checked_by": by,
             "cuts_found": 0 if failed else int(counts.get(i, 0)),
@@ -1187,7 +1198,7 @@ def _neighbour_model(col, intervals: dict, k: int, max_distance):
     parts = [[], [], [], [], [], []]
     for i in wells:
         ia, ib, d, x, y = intervals[i]
-        parts[0].append(np.full(len(ia), i, dtype=np.int64))
+        parts[0].append(np.full(ia.size, i, dtype=np.int64))
         for p, v in zip(parts[1:], (ia, ib, d, x, y)):
             p.append(np.asarray(v, dtype=float))
     if wells:
@@ -1205,19 +1216,62 @@ def _neighbour_model(col, intervals: dict, k: int, max_distance):
     for i, part in zip(wells, parts[0]):
         flat[i] = exp[start:start + part.size]
         start += part.size
-    return model, flat
+    pairs = (w, ia.astype(np.int64), ib.astype(np.int64), d, exp)
+    return model, flat, pairs
 
 
-def _crossing_counts(col: ReferenceColumn, intervals: dict) -> dict[int, int]:
+def _dirty_wells(col: ReferenceColumn, pairs, tol_n: TopsTolerance, tol_c: TopsTolerance):
+    """Wells that tops evidence may find a cut in, from pass 1's intervals (vectorised).
+
+    The comparison of :func:`_clean_by_tops` for every interval of the field at once:
+    expected from the neighbours where every interval of the well has a prediction (else the
+    column, with the column's tolerance), flagged beyond 90 % of the allowed difference. Wells
+    with a surface picked twice are always 'dirty' (certain repeats, repeated keys).
+    Returns (dirty well indices, wells judged against their neighbours).
+    """
+    w, ia, ib, d, exp = pairs
+    if w.size == 0:
+        return set(), set()
+    s = np.asarray(col.s_m, dtype=float)
+    sq = np.concatenate([[0.0], np.cumsum(np.nan_to_num(
+        np.asarray(col.thicknesses_m, dtype=float)) ** 2)])
+    lo, hi = np.minimum(ia, ib), np.maximum(ia, ib)
+    col_exp = s[ib] - s[ia]
+    col_spread = np.sqrt(np.maximum(sq[hi] - sq[lo], 0.0))
+    wells, start = np.unique(w, return_index=True)
+    finite = np.isfinite(exp)
+    all_finite = np.minimum.reduceat(finite.astype(np.int8), start).astype(bool)
+    neigh = np.zeros(w.size, dtype=bool)
+    neigh[:] = np.repeat(all_finite, np.diff(np.append(start, w.size)))
+    use = neigh & (ia != ib)
+    expected = np.where(use, exp, col_exp)
+    spread = np.where(use, np.abs(exp), col_spread)
+    rel = np.where(neigh, tol_n.relative, tol_c.relative)
+    floor = np.where(neigh, tol_n.floor_m, tol_c.floor_m)
+    allowed = rel * spread + floor
+    flagged = ~(np.abs(expected - d) <= 0.9 * allowed - 1e-9)
+    dirty = set(np.unique(w[flagged]).tolist())
+    # a surface picked twice: the picks of a well are ia (each pair's upper) + the last ib
+    last = np.append(start[1:] - 1, w.size - 1)
+    pw = np.concatenate([w, w[last]])
+    pidx = np.concatenate([ia, ib[last]])
+    order = np.lexsort((pidx, pw))
+    same = (pw[order][1:] == pw[order][:-1]) & (pidx[order][1:] == pidx[order][:-1])
+    dirty |= set(pw[order][1:][same].tolist())
+    return dirty, set(wells[all_finite].tolist())
+
+
+def _crossing_counts(col: ReferenceColumn, pairs) -> dict[int, int]:
     """Wells whose consecutive picks bracket each column surface (could show a gap there)."""
-    counts = np.zeros(len(col), dtype=np.int64)
-    for ia, ib, *_ in intervals.values():
-        seen = np.zeros(len(col), dtype=bool)
-        for a, b in zip(ia, ib):
-            lo, hi = min(a, b), max(a, b)
-            seen[lo + 1:hi + 1] = True
-        counts += seen
-    return {j: int(c) for j, c in enumerate(counts)}
+    w, ia, ib = pairs[0], pairs[1], pairs[2]
+    lo, hi = np.minimum(ia, ib), np.maximum(ia, ib)
+    span = hi - lo
+    rep = np.repeat(np.arange(w.size), span)
+    surface = np.repeat(lo + 1, span) + (np.arange(rep.size) - np.repeat(np.cumsum(span) - span,
+                                                                         span))
+    key = np.unique(w[rep] * (len(col) + 1) + surface)
+    counts = np.bincount(key % (len(col) + 1), minlength=len(col) + 1)
+    return {j: int(counts[j]) for j in range(len(col))}
 
 
 def _collect(cut_out: dict):
