@@ -49,7 +49,9 @@ def test_tops_and_cuts_match_simulate_well(model):
         return (0.85 + 0.3 * x / 3000.0)[:, None] * np.ones(len(col))
 
     tops, cuts = field_tops(plan, col, beds, faults, thickness_factors=trend)
-    factors = trend(plan["x_m"].to_numpy(), plan["y_m"].to_numpy())
+    factors = tops.attrs["thickness_factors"]
+    assert factors.shape == (len(plan), len(col))
+    assert factors.min() < 0.9 and factors.max() > 1.1
     checked = with_cuts = 0
     for k in range(0, len(plan), 5):
         row = plan.iloc[k]

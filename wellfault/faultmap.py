@@ -309,6 +309,15 @@ def fit_faults(
     bed_n = np.asarray(bed_n, dtype=float).reshape(n_all, 3)
     rng = np.random.default_rng(o.seed)
     free = placed.copy()
+    # direction of drilling through each bracket (top -> base) and the signed jump: under a
+    # hypothesis plane they give each cut's separation sense (normal when c·Δs > 0, c = +1
+    # crossing hanging wall -> footwall, DESIGN.md §3); one fault has one sense
+    chord = 2.0 * hb
+    size = np.linalg.norm(chord, axis=1)
+    tan = np.where(size[:, None] > 1e-6, chord / np.where(size > 1e-6, size, 1.0)[:, None], 0.0)
+    ds = np.nan_to_num(cuts["delta_s_m"].to_numpy(float)) if "delta_s_m" in cuts else \
+        np.zeros(n_all)
+    data = _Data(pts, hb, wells, bed_n, tan, ds)
 
     # -- 1. possible unconformities
     if column is not None:
@@ -334,8 +343,7 @@ def fit_faults(
         while True:
             for k in np.flatnonzero(dirty):
                 g = idx_free[k]
-                best[k] = _seed_hypothesis(g, local[k], pts, hb, wells, bed_n, free, o) \
-                    if free[g] else None
+                best[k] = _seed_hypothesis(g, local[k], data, free, o) if free[g] else None
                 score[k] = -1 if best[k] is None else best[k][0]
                 cost[k] = np.inf if best[k] is None else best[k][1]
             dirty[:] = False
@@ -343,7 +351,7 @@ def fit_faults(
                 break
             k = int(np.lexsort((cost, -score))[0])
             g = int(idx_free[k])
-            members, n, c, rms = _grow(g, best[k][2], pts, hb, wells, bed_n, free, o)
+            members, n, c, rms = _grow(g, best[k][2], data, free, o)
             if members is None:
                 score[k] = -1  # this seed leads to no fault
                 continue
@@ -379,8 +387,40 @@ def _explained(e, hn, o: FaultFitOptions):
     return np.abs(e) <= np.abs(hn) + o.tolerance_m
 
 
-def _seed_hypothesis(g, loc, pts, hb, wells, bed_n, free, o: FaultFitOptions):
-    """Best plane through cut g and two nearby cuts of other wells: (count, cost, normal)."""
+@dataclass
+class _Data:
+    pts: NDArray[np.float64]   # mid-bracket points (x, y, tvdss)
+    hb: NDArray[np.float64]    # half-bracket vectors
+    wells: NDArray[np.int64]   # well codes
+    bed_n: NDArray[np.float64]  # bed normals
+    tan: NDArray[np.float64]   # unit drilling direction through the bracket (0 if unknown)
+    ds: NDArray[np.float64]    # signed stratigraphic jump Δs
+
+
+def _senses(data: _Data, idx, n) -> NDArray[np.int64]:
+    """Separation sense of cuts ``idx`` under plane normal(s) ``n``: +1 normal, -1 reverse,
+    0 unknown (no bracket direction, no jump, or the well along the plane). Shape (L, H)."""
+    n2 = np.atleast_2d(n)
+    tm = data.tan[idx] @ n2.T
+    crossing = np.where(np.abs(tm) > 0.02, -np.sign(tm), 0.0)  # t·m < 0: hanging -> foot
+    return np.sign(crossing * data.ds[idx][:, None]).astype(np.int64)
+
+
+def _majority(inl, sense):
+    """Per column: inliers of the majority sense (unknown senses count with either)."""
+    pos = (inl & (sense > 0)).sum(axis=0)
+    neg = (inl & (sense < 0)).sum(axis=0)
+    major = np.where(pos >= neg, 1, -1)
+    keep = inl & ((sense == 0) | (sense == major[None, :]))
+    return keep, major
+
+
+def _seed_hypothesis(g, loc, data: _Data, free, o: FaultFitOptions):
+    """Best plane through cut g and two nearby cuts of other wells: (count, cost, normal).
+
+    A cut counts for a plane when the plane crosses its bracket (± tolerance) and gives it
+    the plane's majority separation sense."""
+    pts, wells = data.pts, data.wells
     loc = loc[free[loc]]
     others = loc[wells[loc] != wells[g]]
     if others.size < 2:
@@ -401,13 +441,13 @@ def _seed_hypothesis(g, loc, pts, hb, wells, bed_n, free, o: FaultFitOptions):
     if not ok.any():
         return None
     n = _up(cr[ok])
-    ok2 = _valid_normals(n, bed_n[g], o)
+    ok2 = _valid_normals(n, data.bed_n[g], o)
     if not ok2.any():
         return None
     n = n[ok2]
     e = (pts[loc] - pts[g]) @ n.T  # (L, H)
-    hn = hb[loc] @ n.T
-    inl = _explained(e, hn, o)
+    hn = data.hb[loc] @ n.T
+    inl, _major = _majority(_explained(e, hn, o), _senses(data, loc, n))
     excess = np.maximum(np.abs(e) - np.abs(hn), 0.0)
     cost = np.minimum(excess, o.tolerance_m) ** 2
     cost = np.where(inl, cost, o.tolerance_m ** 2).sum(axis=0)
@@ -435,15 +475,17 @@ def _component(cand, pts, seed, o: FaultFitOptions):
     return cand[label == lab]
 
 
-def _grow(g, n, pts, hb, wells, bed_n, free, o: FaultFitOptions):
+def _grow(g, n, data: _Data, free, o: FaultFitOptions):
     """Refine a hypothesis through seed g: (members, normal, centre, rms) or Nones."""
+    pts, hb = data.pts, data.hb
     pool = np.flatnonzero(free)
     c = pts[g]
     members = None
     for _ in range(o.max_refinements):
         e = (pts[pool] - c) @ n
-        cand = pool[_explained(e, hb[pool] @ n, o)]
-        cand = _component(cand, pts, g, o)
+        inl = _explained(e, hb[pool] @ n, o)[:, None]
+        inl, _major = _majority(inl, _senses(data, pool, n))
+        cand = _component(pool[inl[:, 0]], pts, g, o)
         if cand.size < 3:
             return None, None, None, None
         n_new, c_new, _rms = _weighted_plane(pts[cand], hb[cand], n, o.position_sd_m)
@@ -453,9 +495,9 @@ def _grow(g, n, pts, hb, wells, bed_n, free, o: FaultFitOptions):
         if same:
             break
     n, c, rms = _weighted_plane(pts[members], hb[members], n, o.position_sd_m)
-    bed = bed_n[members].mean(axis=0)
+    bed = data.bed_n[members].mean(axis=0)
     bed = bed / np.linalg.norm(bed)
-    if (members.size < o.min_cuts or np.unique(wells[members]).size < o.min_wells
+    if (members.size < o.min_cuts or np.unique(data.wells[members]).size < o.min_wells
             or not bool(_valid_normals(n[None, :], bed, o)[0])):
         return None, None, None, None
     return members, n, c, rms

@@ -196,7 +196,10 @@ def field_tops(
     beds, faults
         The model in (x, y, TVDSS); faults youngest first.
     thickness_factors : callable (x, y) -> (W, U), array (W, U) or (U,), optional
-        Lateral thickness change per well and unit.
+        Lateral thickness change per well and unit. A callable is a map: it is read where
+        each well is in the middle of the column (not at its surface location, which a
+        high-angle well leaves kilometres behind). The factors used are returned in
+        ``tops.attrs["thickness_factors"]``.
     pick_noise_m : float
         Standard deviation of the Gaussian error added to each pick's MD. [m]
     unpicked_fraction : float
@@ -215,7 +218,9 @@ def field_tops(
     """
     faults = tuple(faults)
     rng = np.random.default_rng(seed)
-    f_all = _factor_matrix(plan, column, thickness_factors)
+    f_all = None if callable(thickness_factors) else \
+        _factor_matrix(plan, column, thickness_factors)
+    f_used = np.ones((len(plan), len(column)))
     ref = np.asarray(column.s_m, dtype=float)
     has_base = not math.isnan(column.base_s_m)
     ref_knots = np.append(ref, column.base_s_m) if has_base else ref
@@ -227,9 +232,6 @@ def field_tops(
     cut_rows: list[dict] = []
     for start in range(0, len(plan), chunk):
         sub = plan.iloc[start:start + chunk].reset_index(drop=True)
-        f = f_all[start:start + chunk]
-        loc_knots = ref_knots[0] + np.concatenate(
-            [np.zeros((len(sub), 1)), np.cumsum(th[None, :] * f[:, :len(th)], axis=1)], axis=1)
         td = sub["td_m"].to_numpy(float)
         n_s = int(math.ceil(td.max() / step_m)) + 1
         md = np.minimum(np.arange(n_s)[None, :] * step_m, td[:, None])
@@ -243,6 +245,19 @@ def field_tops(
             mem[..., j] = (q - np.asarray(flt.point)) @ flt.normal_up > 0.0
             q[mem[..., j]] -= np.asarray(flt.slip)
         s = q @ n_vec + beds.origin_s_m
+        if f_all is None:
+            # thickness is a property of the place: read the map where the well is in the
+            # middle of the column (one factor set per well, as simulate_well takes it)
+            mid_s = 0.5 * (ref_knots[0] + ref_knots[-1])
+            k_mid = np.argmin(np.where(valid, np.abs(s - mid_s), np.inf), axis=1)
+            at = p[np.arange(len(sub)), k_mid]
+            f = _factor_matrix(pd.DataFrame({"x_m": at[:, 0], "y_m": at[:, 1]}), column,
+                               thickness_factors)
+        else:
+            f = f_all[start:start + chunk]
+        f_used[start:start + chunk] = f
+        loc_knots = ref_knots[0] + np.concatenate(
+            [np.zeros((len(sub), 1)), np.cumsum(th[None, :] * f[:, :len(th)], axis=1)], axis=1)
         pair_ok = valid[:, 1:]
         changed = (np.any(mem[:, 1:] != mem[:, :-1], axis=-1) if faults
                    else np.zeros_like(pair_ok)) & pair_ok
@@ -282,6 +297,7 @@ def field_tops(
                                            "fault_name", "delta_s_m", "crossing"])
     if len(cuts):
         cuts = cuts.sort_values(["well", "md_m"], kind="stable").reset_index(drop=True)
+    tops.attrs["thickness_factors"] = f_used
     return tops, cuts
 
 
