@@ -4,7 +4,7 @@ Used by the accuracy tests and the benchmark scripts, so the two measure the sam
 
 Matching rule: a true cut is found by the detected cut whose bracket, widened by ``slack_m``,
 holds the true MD; when several do, the one whose best-estimate MD is nearest. Each detected cut
-matches at most one true cut; an unmatched detected cut is a false cut.
+matches at most one true cut (unless ``shared``); an unmatched detected cut is a false cut.
 """
 
 from __future__ import annotations
@@ -20,7 +20,8 @@ __all__ = ["match_cuts", "CutScores", "summarise"]
 
 
 def match_cuts(detected: list[FaultCut], truth: pd.DataFrame, *, slack_m: float = 1.0,
-               md_range: tuple[float, float] | None = None) -> tuple[pd.DataFrame, int]:
+               md_range: tuple[float, float] | None = None, shared: bool = False
+               ) -> tuple[pd.DataFrame, int]:
     """Pair true cuts with detected ones.
 
     Parameters
@@ -33,6 +34,9 @@ def match_cuts(detected: list[FaultCut], truth: pd.DataFrame, *, slack_m: float 
     md_range : (float, float), optional
         Only true cuts strictly inside this MD range count (e.g. between the first and last
         pick, outside which tops cannot see a cut).
+    shared : bool
+        Let one detected cut find several true cuts inside its bracket (tops evidence: two
+        faults between the same two picks are one net jump and cannot be told apart).
 
     Returns
     -------
@@ -47,7 +51,7 @@ def match_cuts(detected: list[FaultCut], truth: pd.DataFrame, *, slack_m: float 
             continue
         best, best_d = None, np.inf
         for i, c in enumerate(detected):
-            if i in used:
+            if i in used and not shared:
                 continue
             if c.md_top_m - slack_m <= tr.md_m <= c.md_base_m + slack_m:
                 d = abs(c.md_m - tr.md_m)

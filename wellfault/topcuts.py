@@ -27,7 +27,7 @@ from .errors import InputError, input_error
 from .measure import MIN_BED_COSINE, FaultAssumptions, measure_cut
 from .results import FaultCut
 
-__all__ = ["TopsTolerance", "find_cuts_from_tops", "tops_intervals"]
+__all__ = ["TopsTolerance", "find_cuts_from_tops", "tops_intervals", "smallest_visible_jump"]
 
 
 @dataclass(frozen=True)
@@ -103,7 +103,7 @@ def _certain_repeats(picks: pd.DataFrame, iv: pd.DataFrame, trajectory, bed_dip:
     for b, name in enumerate(names):
         if name in first:
             a = first[name]
-            grid = np.linspace(md[a], md[b], max(2, int((md[b] - md[a]) / 5.0) + 1))
+            grid = np.linspace(md[a], md[b], int(np.clip((md[b] - md[a]) / 5.0 + 1, 2, 4001)))
             r = np.einsum("ij,ij->i", trajectory.tangent(grid), bed_dip.normals_at(grid, picks))
             if np.all(r > MIN_BED_COSINE) or np.all(r < -MIN_BED_COSINE):
                 k = a + int(np.argmax(-(ds[a:b] * np.sign(r[0]))))
@@ -123,11 +123,15 @@ def tops_intervals(picks: pd.DataFrame, column: ReferenceColumn, trajectory, bed
     interval (field screening's neighbour-aware thickness) replacing the column's.
     """
     known = set(column.names)
-    unknown = [s for s in picks["surface"].astype(str) if s not in known]
+    unknown = [k for k, s in enumerate(picks["surface"].astype(str)) if s not in known]
     if unknown:
-        raise input_error(f"surface {unknown[0]!r} in the tops is not in the reference column",
-                          fix=f"the column has {list(column.names)}; rename the pick or add the "
-                              "surface to the column")
+        k = unknown[0]
+        raise input_error(
+            f"surface {str(picks['surface'].iloc[k])!r} in the tops is not in the reference "
+            "column", source=picks.attrs.get("source", "tops"),
+            row=picks["row"].iloc[k] if "row" in picks.columns else None,
+            fix=f"the column has {list(column.names)}; rename the pick (names must match "
+                "exactly) or add the surface to the column")
     if len(picks) < 2:
         return pd.DataFrame(columns=["surface_above", "surface_below", "md_top_m", "md_base_m",
                                      "expected_m", "spread_m", "drilled_m", "delta_s_m"])
@@ -158,6 +162,26 @@ def tops_intervals(picks: pd.DataFrame, column: ReferenceColumn, trajectory, bed
         "expected_m": exp, "spread_m": spread, "drilled_m": drilled,
         "delta_s_m": exp - drilled,
     })
+
+
+def smallest_visible_jump(picks: pd.DataFrame, column: ReferenceColumn, trajectory,
+                          bed_dip: BedDip, md_m, tolerance: TopsTolerance = TopsTolerance()
+                          ) -> np.ndarray:
+    """The smallest stratigraphic jump the tops can show at each MD [m TST].
+
+    It is the tolerance of the pick interval holding the MD (floor + relative part of the
+    interval's spread); NaN outside the picks. Useful to say which cuts tops cannot see.
+    """
+    iv = tops_intervals(picks.sort_values("md_m"), column, trajectory, bed_dip)
+    allowed = tolerance.allowed(iv["spread_m"].to_numpy(float))
+    top, base = iv["md_top_m"].to_numpy(float), iv["md_base_m"].to_numpy(float)
+    md = np.atleast_1d(np.asarray(md_m, dtype=float))
+    out = np.full(md.size, np.nan)
+    for i, m in enumerate(md):
+        k = np.flatnonzero((top <= m) & (m <= base))
+        if k.size:
+            out[i] = allowed[k[0]]
+    return out
 
 
 def find_cuts_from_tops(
