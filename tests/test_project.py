@@ -36,3 +36,15 @@ def test_readme_and_cli_show_the_caution():
 def test_licence_is_apache_2():
     text = (REPO_ROOT / "LICENSE").read_text()
     assert "Apache License" in text and "Version 2.0, January 2004" in text
+
+
+def test_readme_python_example_runs(monkeypatch):
+    """The README's Python example runs as printed, on the invented field."""
+    text = (REPO_ROOT / "README.md").read_text()
+    blocks = re.findall(r"```python\n(.+?)\n```", text, flags=re.S)
+    assert blocks
+    monkeypatch.chdir(REPO_ROOT)
+    for code in blocks:
+        namespace: dict = {}
+        exec(compile(code, "README.md", "exec"), namespace)  # noqa: S102 - our own README
+    assert "result" in namespace and len(namespace["result"].cuts) == 1

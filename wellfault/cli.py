@@ -21,8 +21,7 @@ EXIT_OK, EXIT_SOME_FAILED, EXIT_BAD_INPUT = 0, 1, 2
 
 class _ArgumentParser(argparse.ArgumentParser):
     def error(self, message):  # exit 2 with a one-line message, like every bad input
-        self.print_usage(sys.stderr)
-        raise _UsageError(f"{self.prog}: {message}")
+        raise _UsageError(f"wellfault: error: {message}; see {self.prog} --help")
 
 
 class _UsageError(Exception):
@@ -186,11 +185,12 @@ def main(argv: list[str] | None = None) -> int:
             return EXIT_BAD_INPUT
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", WellfaultWarning)
-            code = args.func(args)
-        for w in caught:
-            if issubclass(w.category, WellfaultWarning):
-                print(f"wellfault: warning: {w.message}", file=sys.stderr)
-        return code
+            try:
+                return args.func(args)
+            finally:  # what was noticed before a failure helps to explain it: print it too
+                for w in caught:
+                    if issubclass(w.category, WellfaultWarning):
+                        print(f"wellfault: warning: {w.message}", file=sys.stderr)
     except _UsageError as err:
         print(str(err), file=sys.stderr)
         return EXIT_BAD_INPUT

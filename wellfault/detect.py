@@ -8,6 +8,7 @@ command line gives them.
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -17,7 +18,7 @@ import pandas as pd
 from .column import ReferenceColumn
 from .curvecuts import CurveSettings, combine_evidence, find_cuts_from_curves
 from .dip import BedDip
-from .errors import InputError
+from .errors import InputError, SurveyError, WellfaultWarning, input_error
 from .measure import FaultAssumptions, FaultPlane
 from .results import FaultCut, cuts_to_frame
 from .topcuts import TopsTolerance, find_cuts_from_tops
@@ -105,11 +106,13 @@ def analyse_well(
     if isinstance(bed_dip, str):
         bed_dip = BedDip.parse(bed_dip)
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
+    _check_dip_surfaces(bed_dip, column)
     if isinstance(fault, str):
         fault = parse_attitude(fault)
     if isinstance(pitch, str):
         pitch = _parse_pitch_text(pitch)
     assumptions = FaultAssumptions(fault=fault, pitch=pitch, planes=tuple(planes))
+    survey = trajectory
     if trajectory is None:
         trajectory = Trajectory.vertical(x0_m=_or0(well.x_m), y0_m=_or0(well.y_m),
                                          ref_elevation_m=well.ref_elevation_m)
@@ -126,6 +129,8 @@ def analyse_well(
                 raise InputError(f"the tops file has no picks for well {well.name!r}; it names "
                                  f"{sorted(tops['well'].astype(str).unique())[:10]}")
         picks = picks.assign(well=str(well.name))
+    check_depth_coverage(well, picks, survey)
+    if picks is not None:
         cuts += find_cuts_from_tops(picks, column, trajectory, bed_dip=bed_dip,
                                     well=str(well.name), assumptions=assumptions,
                                     tolerance=tolerance, expected=expected)
@@ -160,6 +165,96 @@ def find_fault_cuts(well, column: ReferenceColumn, **kwargs) -> pd.DataFrame:
 
 def _or0(v):
     return 0.0 if v is None else float(v)
+
+
+def _check_dip_surfaces(bed_dip: BedDip, column: ReferenceColumn) -> None:
+    """A per-surface dip table may name only surfaces of the column (a typo would silently
+    leave that unit with the default dip)."""
+    if bed_dip.kind != "surface" or bed_dip.table is None:
+        return
+    names = bed_dip.table["surface"].astype(str).tolist()
+    unknown = [n for n in names if n not in set(column.names)]
+    if unknown:
+        rows = bed_dip.table.attrs.get("rows") or [None] * len(names)
+        row = rows[names.index(unknown[0])] if len(rows) == len(names) else None
+        raise input_error(
+            f"surface {unknown[0]!r} in the dip table is not in the reference column",
+            source=bed_dip.table.attrs.get("source", "dip table"), row=row,
+            fix=f"the column has {list(column.names)}; rename it (names must match exactly) "
+                "or delete the row")
+
+
+def coverage_reach_m(well) -> float:
+    """How far beyond the logged interval picks and the well path may reach. [m]
+
+    10 % of the logged interval, at least 150 m (common practice: a straight extension over a
+    few stands of pipe, or a pick from a log run a little deeper, is a fair reading; more is a
+    sign of a wrong unit, a wrong well or a short survey).
+    """
+    top, base = well.md_range_m
+    return max(150.0, 0.10 * (base - top))
+
+
+def check_depth_coverage(well, picks: pd.DataFrame | None,
+                         trajectory: Trajectory | None) -> None:
+    """Check that the picks lie along the log and that the survey reaches down to them.
+
+    A pick outside the logged interval by up to :func:`coverage_reach_m`, or a survey that
+    ends that little above the deepest log sample or pick, is used as given (below the last
+    station the path goes straight on along its direction) with a :class:`WellfaultWarning`;
+    further raises. ``trajectory`` None or a lone station at MD 0 (a vertical well) skips the
+    survey check.
+
+    Raises
+    ------
+    InputError
+        A pick further outside the log: a wrong depth unit, another well's tops, TVD as MD.
+    SurveyError
+        A survey that ends further above the deepest depth used.
+    """
+    unit = well.depth_unit
+    k_u = 1.0 / unit.metres
+    top, base = well.md_range_m
+    reach = coverage_reach_m(well)
+    md = np.zeros(0) if picks is None else picks["md_m"].to_numpy(float)
+    off = np.maximum(top - md, md - base)
+    log_text = f"the log {well.source} covers MD {top * k_u:g}-{base * k_u:g} {unit.suffix}"
+    if md.size and np.nanmax(off) > 0:
+        k = int(np.nanargmax(off))
+        source = picks.attrs.get("source", "tops")
+        where = f"pick {str(picks['surface'].iloc[k])!r} at MD {md[k] * k_u:g} {unit.suffix}"
+        if off[k] > reach:
+            raise input_error(
+                f"{where} lies {off[k] * k_u:g} {unit.suffix} outside the log ({log_text})",
+                source=source, row=picks["row"].iloc[k] if "row" in picks.columns else None,
+                fix="check that the tops belong to this well and that their depth unit is "
+                    "right (md_m or md_ft, --depth-unit); picks may lie at most "
+                    f"{reach * k_u:g} {unit.suffix} beyond the log")
+        warnings.warn(
+            f"{source}: {int(np.sum(off > 0))} pick(s) outside the logged interval, the "
+            f"furthest {where}, {off[k] * k_u:g} {unit.suffix} outside ({log_text}); used "
+            "them as given", WellfaultWarning, stacklevel=3)
+    if trajectory is None or trajectory.md_max_m <= 0.0:
+        return
+    deepest = float(np.nanmax(np.append(md, base)))
+    gap = deepest - trajectory.md_max_m
+    if not gap > 0:
+        return
+    end = (f"the survey ends at MD {trajectory.md_max_m * k_u:g} {unit.suffix}, "
+           f"{gap * k_u:g} {unit.suffix} above the "
+           f"{'log bottom' if deepest == base else 'deepest pick'} (MD "
+           f"{deepest * k_u:g} {unit.suffix})")
+    source = trajectory.source or (f"well {well.name!r}" if well.name else "survey")
+    if gap > reach:
+        raise input_error(
+            end, source=source, cls=SurveyError,
+            fix="give the survey down to total depth (wellfault extends the last station's "
+                f"direction straight for at most {reach * k_u:g} {unit.suffix})")
+    inc, azi = trajectory.inclination_azimuth(trajectory.md_max_m)
+    warnings.warn(
+        f"{source}: {end}; extended the path straight along the last station (inc "
+        f"{float(inc[0]):g}, azi {float(azi[0]):g} deg). Give the survey down to total depth "
+        "to silence this", WellfaultWarning, stacklevel=3)
 
 
 def _parse_pitch_text(text: str) -> tuple[float, float]:
@@ -246,7 +341,15 @@ def detect_files(
     well = read_las(las, depth_unit=unit_given)
     if dip is not None and dip_table is not None:
         raise InputError("give either --dip or --dip-table, not both")
-    bed = BedDip.parse(dip) if dip is not None else None
+    bed = BedDip.parse(dip, source="--dip") if dip is not None else None
+    if isinstance(fault, str):
+        from .geometry import parse_attitude
+
+        fault = parse_attitude(fault, source="--fault")
+    if isinstance(pitch, str):
+        from .slip import parse_pitch
+
+        pitch = parse_pitch(pitch, source="--pitch")
     if dip_table is not None:
         t = read_dip_table(dip_table, depth_unit=unit_given)
         bed = BedDip.from_md_table(t, source=dip_table) if "md_m" in t.columns else \

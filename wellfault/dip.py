@@ -25,8 +25,11 @@ def bed_normal_vector(dip_deg: ArrayLike, dip_azimuth_deg: ArrayLike) -> NDArray
     return np.asarray(bed_normal(dip_deg, dip_azimuth_deg), dtype=float)
 
 
-def parse_dip_text(text: str, *, what: str = "dip") -> tuple[float, float]:
+def parse_dip_text(text: str, *, what: str = "dip", source: object = None
+                   ) -> tuple[float, float]:
     """Read the trade's ``dip/dip-azimuth`` notation (``"12/075"``) into two floats [°].
+
+    ``source`` (e.g. ``"--dip"``) names where the text came from in messages.
 
     >>> parse_dip_text("12/075")
     (12.0, 75.0)
@@ -38,10 +41,10 @@ def parse_dip_text(text: str, *, what: str = "dip") -> tuple[float, float]:
         dip, azi = float(parts[0]), float(parts[1])
     except ValueError:
         raise input_error(
-            f"cannot read {what} {text!r}",
+            f"cannot read {what} {text!r}", source=source,
             fix="write it as dip/dip-azimuth in degrees, e.g. 12/075",
         ) from None
-    _check_attitude(dip, azi, what=what)
+    _check_attitude(dip, azi, what=what, source=source)
     return dip, azi % 360.0
 
 
@@ -78,9 +81,9 @@ class BedDip:
         return cls("constant", float(dip_deg), float(dip_azimuth_deg) % 360.0)
 
     @classmethod
-    def parse(cls, text: str) -> BedDip:
-        """``BedDip.parse("12/075")``."""
-        return cls.constant(*parse_dip_text(text))
+    def parse(cls, text: str, *, source: object = None) -> BedDip:
+        """``BedDip.parse("12/075")``; ``source`` names the text's origin in messages."""
+        return cls.constant(*parse_dip_text(text, source=source))
 
     @classmethod
     def per_surface(cls, table: pd.DataFrame, *, default: tuple[float, float] = (0.0, 0.0),
@@ -181,7 +184,8 @@ class BedDip:
             return (trajectory.position(b) - trajectory.position(a)) @ n
         out = np.empty(a.size)
         for k, (lo, hi) in enumerate(zip(a, b)):
-            steps = max(1, int(np.ceil(abs(hi - lo) / max_step_m)))
+            # at most 1e5 steps: a longer interval is a bad depth, not a well (bounded memory)
+            steps = int(np.clip(np.ceil(abs(hi - lo) / max_step_m), 1, 100_000))
             md = np.linspace(lo, hi, steps + 1)
             pos = trajectory.position(md)
             n = self.normals_at(0.5 * (md[1:] + md[:-1]), picks)

@@ -356,8 +356,11 @@ class Trajectory:
         """Build from a survey table with columns ``md_m``, ``inc_deg``, ``azi_deg``.
 
         Other columns (provider TVD, north, east, ...) are ignored. Keyword arguments are passed
-        to :class:`Trajectory` (``x0_m``, ``y0_m``, ``ref_elevation_m``, ``name``, ``source``).
+        to :class:`Trajectory` (``x0_m``, ``y0_m``, ``ref_elevation_m``, ``name``, ``source``);
+        ``source`` defaults to the file :func:`wellfault.io.read_survey` noted in ``df.attrs``.
         """
+        if kwargs.get("source") is None and df.attrs.get("source"):
+            kwargs["source"] = str(df.attrs["source"])
         need = ("md_m", "inc_deg", "azi_deg")
         missing = [c for c in need if c not in df.columns]
         if missing:

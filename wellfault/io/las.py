@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import functools
 import io
+import logging
 import math
 import re
 import warnings
@@ -136,8 +137,20 @@ def _scan(text: str, source: str) -> _Scan:
     if n_curves == 0:
         raise InputError(f"{source}: the ~Curve section is empty; list the depth curve and each "
                          "log curve")
-    a_pos = sections[letters.index("A")][0]
+    a_idx = letters.index("A")
+    a_pos = sections[a_idx][0]
     a_line = text.count("\n", 0, a_pos) + 1
+    if a_idx + 1 < len(sections):  # LAS 2.0: ~A is the last section; rows after are lost
+        after = sections[a_idx + 1][0]
+        if _FIRST_CONTENT.search(_SECTION.sub("#", text[after:])):
+            line = text.count("\n", 0, after) + 1
+            marker = text[after:].split("\n", 1)[0]
+            raise InputError(
+                f"{source}, line {line}: section {marker.strip()[:30]!r} follows the ~A (data) "
+                f"section of line {a_line}, which must be the last section of a LAS file, so "
+                "what follows it would be lost; move that section above ~A, or join a second "
+                "data block into the first"
+            )
     scan = _Scan(source, text[:a_pos], body("A"), a_line, wrapped, n_curves)
     if not scan.data_lines:
         raise InputError(f"{source}: the ~A section (line {a_line}) has no data rows; the file "
@@ -429,7 +442,14 @@ def _location(items: dict[str, lasio.HeaderItem], *, source: str,
 
 
 def _lasio_read(text: str, source: str, **kwargs: object) -> lasio.LASFile:
-    """lasio.read on text, with any lasio failure turned into one InputError."""
+    """lasio.read on text, with any lasio failure turned into one InputError.
+
+    lasio's own log messages (e.g. "Could not convert curve #1") are held back while it reads:
+    read_las reports the same problems as one warning or error that names the file.
+    """
+    logger = logging.getLogger("lasio")
+    level = logger.level
+    logger.setLevel(logging.ERROR)
     try:
         return lasio.read(io.StringIO(text), mnemonic_case="upper", **kwargs)
     except Exception as err:  # lasio raises many unrelated types; all mean "cannot parse"
@@ -438,6 +458,8 @@ def _lasio_read(text: str, source: str, **kwargs: object) -> lasio.LASFile:
             f"{source}: cannot be parsed as LAS ({detail}); check the header lines near the "
             "place named and that the file is LAS 1.2/2.0"
         ) from err
+    finally:
+        logger.setLevel(level)
 
 
 def read_las(
@@ -475,14 +497,16 @@ def read_las(
     InputError
         Missing, empty, binary, not-LAS, truncated or header-only files, ragged/wrapped lines in
         an unwrapped file, duplicated depths, depths that turn back, text depths, curves that
-        are all text, or anything else lasio cannot parse.
+        are all text, a section after ~A (whose content would be lost), or anything else lasio
+        cannot parse.
 
     Warns
     -----
     WellfaultWarning
-        Undeclared null markers (-999.25, -9999, -999) converted to NaN; text cells in numeric
-        curves; curves that are entirely null; a STEP/STRT/STOP that disagrees with the data
-        (the data is used); elevations or coordinates without a usable unit.
+        Undeclared null markers (-999.25, -9999, -999) converted to NaN; text cells and
+        infinite values (``inf``, ``1e400``) in numeric curves; curves that are entirely null;
+        a STEP/STRT/STOP that disagrees with the data (the data is used); elevations or
+        coordinates without a usable unit.
 
     Notes
     -----
@@ -498,6 +522,8 @@ def read_las(
     if not data.strip():
         raise InputError(f"{source}: file is empty; give a LAS 2.0 file")
     text = _decode(data, source)
+    if "\r" in text:  # Windows and old Mac line ends
+        text = text.replace("\r\n", "\n").replace("\r", "\n")
     scan = _scan(text, source)
     las = _lasio_read(scan.header_text, source, ignore_data=True)
     if len(las.curves) == 0:
@@ -549,11 +575,18 @@ def read_las(
             )
         md_file = np.where(md_file == marker, np.nan, md_file)
 
+    overflow = {name: int(np.isinf(v).sum()) for name, v in curves.items() if np.isinf(v).any()}
+    if overflow:
+        for name in overflow:
+            curves[name][np.isinf(curves[name])] = np.nan
+        listed = ", ".join(f"{name} ({n})" for name, n in overflow.items())
+        warnings.warn(f"{source}: infinite or overflowing values (e.g. inf, 1e400) set to NaN: "
+                      f"{listed} cell(s)", WellfaultWarning, stacklevel=2)
     bad = ~np.isfinite(md_file)
     if bad.any():
         k = int(np.argmax(bad))
-        raise InputError(f"{source}, {_row_where(scan, k)}: depth is null or missing; delete "
-                         "rows without a depth")
+        raise InputError(f"{source}, {_row_where(scan, k)}: depth is null, missing or infinite; "
+                         "delete rows without a depth")
     md_file = _check_depth_order(md_file, source=source, scan=scan, unit=unit)
     _check_header_depths(items, md_file, source=source, unit=unit)
     order = np.argsort(md_file) if md_file.size > 1 and md_file[0] > md_file[-1] else None

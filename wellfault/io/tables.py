@@ -20,6 +20,7 @@ import io
 import json
 import os
 import re
+import stat
 import tempfile
 import warnings
 from collections.abc import Iterable, Sequence
@@ -307,6 +308,13 @@ def _to_float(
     out = np.full(len(values), np.nan)
     mask = is_number.to_numpy()
     out[mask] = text.to_numpy()[mask].astype(float)
+    huge = mask & ~np.isfinite(out)
+    if huge.any():  # digits that overflow a float, e.g. 1e400
+        line = values.index[int(np.argmax(huge))]
+        raise input_error(
+            f"{what} in column {col!r} is too large to be a number", source=raw.source,
+            row=line, value=str(values.loc[line]), fix="correct the value", cls=cls,
+        )
     return out
 
 
@@ -518,6 +526,7 @@ def read_tops(
     DataFrame
         Columns ``well`` (str), ``surface`` (str), ``md_m`` (float, [m]) and ``row`` (1-based
         line number in the file), ordered by well (first appearance) then MD.
+        ``attrs["source"]`` is the file, for messages about a pick.
 
     Raises
     ------
@@ -597,6 +606,7 @@ def read_tops(
         .drop(columns="_w")
         .reset_index(drop=True)
     )
+    out.attrs["source"] = raw.source  # for messages about picks further on (row = file line)
     return out
 
 
@@ -620,7 +630,8 @@ def read_survey(path: PathLike, *, depth_unit: DepthUnit | str | None = None) ->
     DataFrame
         ``md_m`` [m], ``inc_deg`` [°], ``azi_deg`` [°, in 0-360) and, when present, ``tvd_m``,
         ``north_m``, ``east_m`` [m] (NaN where the provider left a cell blank). Azimuth 360 is
-        written as 0.
+        written as 0. ``attrs`` holds ``source`` (the file) and ``depth_unit`` (the file's
+        length unit, e.g. ``"ft"``).
 
     Raises
     ------
@@ -693,6 +704,7 @@ def read_survey(path: PathLike, *, depth_unit: DepthUnit | str | None = None) ->
         values = _to_float(raw, col, what=out_name[:-2], required=False, cls=SurveyError)
         if np.isfinite(values).any():
             out[out_name] = values * unit.metres
+    out.attrs.update(source=raw.source, depth_unit=unit.value)
     return out
 
 
@@ -792,8 +804,10 @@ def read_dip_table(path: PathLike, *, depth_unit: DepthUnit | str | None = None)
             raise input_error(f"surface {name!r} appears twice (first on row {seen[name]})",
                               source=raw.source, row=line, fix="keep one attitude per surface")
         seen[name] = int(line)
-    return pd.DataFrame({"surface": pd.Series(names, dtype=object), "dip_deg": dip,
-                         "dip_azimuth_deg": azi})
+    out = pd.DataFrame({"surface": pd.Series(names, dtype=object), "dip_deg": dip,
+                        "dip_azimuth_deg": azi})
+    out.attrs.update(source=raw.source, rows=[int(v) for v in lines])  # for messages
+    return out
 
 
 def _parse_flag(raw: _RawTable, col: str) -> NDArray[np.bool_]:
@@ -981,6 +995,17 @@ def read_manifest(
 # writers
 
 
+def _file_mode(target: Path) -> int:
+    """Permissions for a new file at ``target``: the replaced file's, else 0666 less the umask."""
+    try:
+        return stat.S_IMODE(target.stat().st_mode)
+    except OSError:
+        pass
+    mask = os.umask(0o022)  # reading the umask means setting it: put it straight back
+    os.umask(mask)
+    return 0o666 & ~mask
+
+
 def _atomic_write_text(path: PathLike, text: str) -> Path:
     """Write ``text`` to a temporary file beside ``path`` and rename it over ``path``."""
     target = Path(path)
@@ -995,6 +1020,9 @@ def _atomic_write_text(path: PathLike, text: str) -> Path:
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
             fh.write(text)
+        # mkstemp makes the file private (0600); give it the mode a plain open() would, or
+        # keep the mode of the file it replaces
+        os.chmod(tmp, _file_mode(target))
         os.replace(tmp, target)
     except OSError as err:
         Path(tmp).unlink(missing_ok=True)
