@@ -35,13 +35,13 @@ import threading
 import time
 from pathlib import Path
 
-import numpy as np
-
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE.parent))
 
 
 def make_field(folder: Path, n: int, seed: int = 1) -> dict:
+    import numpy as np
+
     from wellfault.fieldsim import field_tops, plan_wells, write_field
     from wellfault.forward import Beds, PlanarFault, synthetic_column
 
@@ -81,6 +81,7 @@ class _Sampler:
         self.me = psutil.Process()
         self.every = every
         self.peak_worker = 0
+        self.peak_main = 0
         self.peak_tree = 0
         self.cpu: dict[int, float] = {}
         self._stop = threading.Event()
@@ -91,6 +92,7 @@ class _Sampler:
 
         while not self._stop.is_set():
             try:
+                self.peak_main = max(self.peak_main, self.me.memory_info().rss)
                 kids = self.me.children(recursive=True)
                 rss = []
                 for k in kids:
@@ -148,7 +150,8 @@ def run_one(args) -> dict:
     return {
         "mode": args.mode, "workers": args.workers, "n": field["n"], "seconds": secs,
         "wells_per_s": field["n"] / secs, "start_s": start_s,
-        "main_maxrss_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0,
+        "main_maxrss_mb": max(sampler.peak_main / 2**20,
+                              resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0),
         "worker_peak_mb": sampler.peak_worker / 2**20, "tree_peak_mb": sampler.peak_tree / 2**20,
         "cuts": int(len(res.cuts)), "wells_with_cuts": wells_cut,
         "faults": int((res.faults["kind"] == "fault").sum()) if len(res.faults) else 0,
@@ -162,6 +165,8 @@ def main() -> None:
     ap.add_argument("--sizes", type=int, nargs="+", default=[2000, 10000])
     ap.add_argument("--no-dask", action="store_true")
     ap.add_argument("--one", action="store_true", help=argparse.SUPPRESS)
+    ap.add_argument("--make", type=int, help=argparse.SUPPRESS)
+    ap.add_argument("--folder", help=argparse.SUPPRESS)
     ap.add_argument("--field", help=argparse.SUPPRESS)
     ap.add_argument("--mode", default="pool", help=argparse.SUPPRESS)
     ap.add_argument("--workers", type=int, default=1, help=argparse.SUPPRESS)
@@ -169,11 +174,19 @@ def main() -> None:
     if args.one:
         print(json.dumps(run_one(args)))
         return
+    if args.make:
+        print(json.dumps(make_field(Path(args.folder), args.make)))
+        return
     root = Path(tempfile.mkdtemp(prefix="bench-screen-"))
     rows = []
     print(f"cores: {os.cpu_count()}; fields in {root}", flush=True)
     for n in args.sizes:
-        field = make_field(root / f"field{n}", n)
+        # drawn in a child process: this process stays small, and the runs (its children,
+        # which inherit its peak resident size on Linux) measure their own memory
+        made = subprocess.run([sys.executable, __file__, "--make", str(n), "--folder",
+                               str(root / f"field{n}")], capture_output=True, text=True,
+                              check=True)
+        field = json.loads(made.stdout.strip().splitlines()[-1])
         print(f"field of {n} wells: {field['picks']} picks, {field['true_cuts']} true cuts, "
               f"{field['faults']} faults; drawn in {field['generate_s']:.1f} s, written in "
               f"{field['write_s']:.1f} s", flush=True)

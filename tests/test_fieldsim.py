@@ -48,8 +48,8 @@ def test_tops_and_cuts_match_simulate_well(model):
     def trend(x, y):
         return (0.85 + 0.3 * x / 3000.0)[:, None] * np.ones(len(col))
 
-    tops, cuts = field_tops(plan, col, beds, faults, thickness_factors=trend)
-    factors = tops.attrs["thickness_factors"]
+    tops, cuts, factors = field_tops(plan, col, beds, faults, thickness_factors=trend,
+                                     return_factors=True)
     assert factors.shape == (len(plan), len(col))
     assert factors.min() < 0.9 and factors.max() > 1.1
     checked = with_cuts = 0

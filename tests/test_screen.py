@@ -402,3 +402,31 @@ def test_shortcuts_change_nothing(small_field, serial_result, monkeypatch):
     monkeypatch.undo()
     _same(plain, screen_wells(man, column, workers=1, progress=False, neighbours=False,
                               fit=False))
+
+
+def test_resume_refuses_changed_inputs(small_field, tmp_path):
+    man, column, _ = small_field
+    out = tmp_path / "run"
+    screen_wells(man, column, workers=1, progress=False, out_dir=out, fit=False)
+    tops = sorted((man.parent / "tops").glob("*.csv"))[0]
+    text = tops.read_text()
+    tops.write_text(text + "\n")  # same picks, but the file changed since the run
+    try:
+        with pytest.raises(InputError, match="different run"):
+            screen_wells(man, column, workers=1, progress=False, out_dir=out, fit=False,
+                         resume=True)
+    finally:
+        tops.write_text(text)
+
+
+def test_remeasuring_without_detecting_again_changes_nothing(small_field, serial_result,
+                                                             monkeypatch):
+    """Pass 3 measures the pass-2 cuts again with the fitted planes (checked against a
+    repeat of the pass-2 measurement); detecting again with the planes gives the same."""
+    man, column, _ = small_field
+    monkeypatch.setattr(screen_mod, "_remeasure", lambda *a, **k: None)
+    again = screen_wells(man, column, workers=1, progress=False)
+    pd.testing.assert_frame_equal(serial_result.cuts, again.cuts, rtol=1e-9)
+    for name in ("errors", "faults", "fault_profiles"):
+        pd.testing.assert_frame_equal(getattr(serial_result, name), getattr(again, name),
+                                      rtol=1e-9)

@@ -184,7 +184,8 @@ def field_tops(
     seed: int = 0,
     step_m: float = 2.0,
     chunk: int = 256,
-) -> tuple[pd.DataFrame, pd.DataFrame]:
+    return_factors: bool = False,
+):
     """Tops and true cuts of every well of ``plan``, drawn at once.
 
     Parameters
@@ -198,8 +199,7 @@ def field_tops(
     thickness_factors : callable (x, y) -> (W, U), array (W, U) or (U,), optional
         Lateral thickness change per well and unit. A callable is a map: it is read where
         each well is in the middle of the column (not at its surface location, which a
-        high-angle well leaves kilometres behind). The factors used are returned in
-        ``tops.attrs["thickness_factors"]``.
+        high-angle well leaves kilometres behind).
     pick_noise_m : float
         Standard deviation of the Gaussian error added to each pick's MD. [m]
     unpicked_fraction : float
@@ -215,6 +215,8 @@ def field_tops(
     cuts : DataFrame
         ``well, md_m, x_m, y_m, tvdss_m, fault, fault_name, delta_s_m, crossing`` (Δs in
         reference-column TST; crossing +1 hanging wall → footwall).
+    factors : ndarray (W, U)
+        With ``return_factors=True``: the thickness factors each well was drawn with.
     """
     faults = tuple(faults)
     rng = np.random.default_rng(seed)
@@ -297,7 +299,8 @@ def field_tops(
                                            "fault_name", "delta_s_m", "crossing"])
     if len(cuts):
         cuts = cuts.sort_values(["well", "md_m"], kind="stable").reset_index(drop=True)
-    tops.attrs["thickness_factors"] = f_used
+    if return_factors:
+        return tops, cuts, f_used
     return tops, cuts
 
 

@@ -383,6 +383,70 @@ def _detect(cfg: _Config, inp: _Inputs, expected, tol, planes, precheck=True
                              unit="m").records)
 
 
+#: The note tops evidence ends its own notes with (wellfault.topcuts.find_cuts_from_tops).
+_MID_NOTE = "cut placed mid-bracket: tops alone do not place it within the bracket"
+
+
+def _same_cut(a: FaultCut, b: FaultCut) -> bool:
+    """Field by field, NaN equal to NaN, floats to 1e-9 relative."""
+    for f in _CUT_FIELDS:
+        x, y = getattr(a, f), getattr(b, f)
+        if isinstance(x, float) or isinstance(y, float):
+            if not (math.isnan(x) and math.isnan(y)) and not math.isclose(
+                    x, y, rel_tol=1e-9, abs_tol=1e-9):
+                return False
+        elif x != y:
+            return False
+    return True
+
+
+def _remeasure(cfg: _Config, inp: _Inputs, previous: list[dict], planes) -> list | None:
+    """Pass 3 without detecting again: each cut of pass 2 measured anew with the fitted planes.
+
+    A cut of tops evidence is :func:`wellfault.measure.measure_cut` applied to the interval
+    between two picks. Its arguments are read back from the pass-2 cut and first checked: the
+    same call without the fitted planes must give the pass-2 cut again (field by field). If
+    any cut does not (curve evidence, notes that cannot be split, anything unforeseen), None:
+    the well is detected again with the planes instead, which always gives the right answer.
+    """
+    from .measure import FaultAssumptions, measure_cut
+    from .topcuts import _unconformity_at
+
+    if cfg.curves is not None:
+        return None
+    frame = None if inp.bed_dip.is_constant else inp.picks.frame()
+    before = FaultAssumptions(planes=tuple(cfg.planes))
+    after = FaultAssumptions(planes=tuple(cfg.planes) + tuple(planes))
+    out = []
+    for d in previous:
+        c = FaultCut(**d)
+        notes = c.notes.split("; ")
+        if c.method != "tops" or _MID_NOTE not in notes:
+            return None
+        own = notes[:notes.index(_MID_NOTE) + 1]
+        unc = c.section == "missing" and _unconformity_at(cfg.column, c.surface_above,
+                                                          c.surface_below)
+        args = dict(well=c.well, method=c.method, md_m=0.5 * (c.md_top_m + c.md_base_m),
+                    md_top_m=c.md_top_m, md_base_m=c.md_base_m, delta_s_m=c.delta_s_m,
+                    trajectory=inp.trajectory, bed_dip=inp.bed_dip, picks=frame,
+                    surface_above=c.surface_above, surface_below=c.surface_below,
+                    confidence=c.confidence, expected_thickness_m=c.expected_thickness_m,
+                    observed_thickness_m=c.observed_thickness_m)
+
+        def measured(assumptions):
+            m = measure_cut(assumptions=assumptions, notes=list(own), **args)
+            if unc:
+                m = dataclasses.replace(m, notes=m.notes + "; missing section at a surface "
+                                        "flagged as an unconformity in the column: it may be "
+                                        "the unconformity and not a fault")
+            return m
+
+        if not _same_cut(measured(before), c):
+            return None
+        out.append(measured(after))
+    return out
+
+
 def _brackets(inp: _Inputs, cuts: list[FaultCut]) -> list[list[float]]:
     if not cuts:
         return []
@@ -412,9 +476,13 @@ def _run_one(cfg: _Config, kind: str, task: WellTask, extra) -> dict:
                 out["iv"] = [idx[:-1].tolist(), idx[1:].tolist(), drilled.tolist(),
                              mid[:, 0].tolist(), mid[:, 1].tolist()]
             else:
-                expected, tol, by, planes, precheck = extra
+                expected, tol, by, planes, precheck = extra[:5]
                 stage["file"] = task.tops
-                cuts = _detect(cfg, inp, expected, tol, planes, precheck)
+                cuts = None
+                if kind == "remeasure" and len(extra) > 5:
+                    cuts = _remeasure(cfg, inp, extra[5], planes)
+                if cuts is None:
+                    cuts = _detect(cfg, inp, expected, tol, planes, precheck)
                 out["c"] = [_cut_dict(c) for c in cuts]
                 out["b"] = _brackets(inp, cuts)
                 out["by"] = by
@@ -795,6 +863,16 @@ def _tasks(manifest: pd.DataFrame) -> list[WellTask]:
     return tasks
 
 
+def _stamp(path) -> list | None:
+    if not path or _ATTITUDE.match(str(path)):
+        return None
+    try:
+        st = os.stat(path)
+    except OSError:
+        return None
+    return [st.st_size, st.st_mtime_ns]
+
+
 def _fingerprint(cfg: _Config, tasks: list[WellTask], settings: dict) -> str:
     col = cfg.column
     doc = {
@@ -807,6 +885,8 @@ def _fingerprint(cfg: _Config, tasks: list[WellTask], settings: dict) -> str:
         "depth_unit": cfg.depth_unit,
         "settings": settings,
         "wells": [dataclasses.astuple(t) for t in tasks],
+        # the files as they are now: a checkpoint made from other versions is not resumed
+        "files": [[_stamp(f) for f in (t.las, t.survey, t.tops, t.dip)] for t in tasks],
     }
     return hashlib.sha256(json.dumps(doc, sort_keys=True, default=repr).encode()).hexdigest()
 
@@ -1051,11 +1131,8 @@ def screen_wells(
                 timings["thickness"] = time.perf_counter() - t0
             # ---------------------------------------------------------------- pass 2
             t0 = time.perf_counter()
-            extras: dict[int, tuple] = {}
 
             def extra_for(i: int) -> tuple:
-                if i in extras:
-                    return extras[i]
                 plain = (None, tolerance, "tops", (), model is None)
                 if model is None or i not in intervals:
                     return plain
@@ -1124,7 +1201,7 @@ def screen_wells(
                 def extra3(i):
                     e, tl, by, _p, _c = extra_for(i)
                     return (e, tl, by, tuple(sorted(planes_by_well[i], key=lambda p: p.name)),
-                            False)
+                            False, cut_out[i]["c"])
 
                 runner.run("remeasure", ((t, extra3(t.index)) for t in todo3), len(todo3),
                            "re-measure with fitted faults", handler("remeasure"))
@@ -1175,7 +1252,7 @@ def screen_wells(
         thickness.insert(0, "well_name", [tasks[int(w)].well for w in thickness["well"]])
         thickness["surface"] = [col.names[int(u)] for u in thickness["unit"]]
     info.update({
-        "unit": out_unit.value, "timings": timings,
+        "runner": runner.kind, "unit": out_unit.value, "timings": timings,
         "seconds_total": time.perf_counter() - t_start,
         "thickness_mode": (f"neighbours (k={neighbour_k}, tolerance "
                            f"{tol_n.relative:.0%} + {tol_n.floor_m:g} m)" if tol_n
