@@ -261,3 +261,13 @@ def test_real_wellington_tops_build_a_column_and_give_back_a_modelled_cut(refdat
     assert cuts[0].section == "missing"
     assert cuts[0].tst_m == pytest.approx(30.0, abs=0.1)
     assert cuts[0].md_top_m <= top_md + s_mid <= cuts[0].md_base_m
+
+
+def test_vertical_beds_give_no_vertical_separation():
+    # TVT = TST / cos δ has no meaning for vertical beds (common practice): NaN with a note
+    col = _column_table(["A", "B", "C"], [30.0, 40.0, 50.0])
+    tops = pd.DataFrame({"surface": ["A", "C"], "md_m": [1000.0, 1045.0]})
+    (cut,) = find_cuts_from_tops(tops, col, Trajectory.vertical(),
+                                 bed_dip=BedDip.constant(90.0, 0.0))
+    assert np.isnan(cut.vertical_separation_m) and np.isnan(cut.tvt_m)
+    assert "vertical" in cut.notes

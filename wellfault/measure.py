@@ -28,6 +28,8 @@ __all__ = ["FaultAssumptions", "FaultPlane", "measure_cut", "MIN_BED_COSINE",
 MIN_BED_COSINE = float(np.sin(np.radians(2.0)))
 #: |t·m| below this (the well within 0.5° of the fault plane): no crossing direction.
 MIN_FAULT_COSINE = float(np.sin(np.radians(0.5)))
+#: Beds steeper than this have no usable vertical thickness (TVT = TST / cos δ blows up).
+MAX_BED_DIP_FOR_VERTICAL_DEG = 89.0
 #: Within this angle of the fault plane the crossing direction is reported with a warning
 #: note: it depends on the fault dip given, which is rarely known that well.
 SENSITIVE_FAULT_ANGLE_DEG = 5.0
@@ -214,8 +216,13 @@ def measure_cut(
                          "apparent bed dip in the fault section assumed 0")
 
     tst = abs(ds)
-    tvt = float(geometry.true_vertical_thickness(tst, dip_deg=bdip))
-    vs = float(geometry.vertical_separation(ds, dip_deg=bdip))
+    if bdip < MAX_BED_DIP_FOR_VERTICAL_DEG:
+        tvt = float(geometry.true_vertical_thickness(tst, dip_deg=bdip))
+        vs = float(geometry.vertical_separation(ds, dip_deg=bdip))
+    else:
+        tvt = vs = math.nan
+        notes.append(f"beds dip {bdip:.1f} deg: vertical thickness and vertical separation are "
+                     "undefined for (near-)vertical beds; use the TST")
     if np.isfinite(fdip):
         throw, heave = (float(v) for v in
                         geometry.throw_and_heave(vs, fault_dip_deg=fdip,
