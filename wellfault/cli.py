@@ -12,6 +12,7 @@ import warnings
 from pathlib import Path
 
 from . import CAUTION, __version__
+from .cli_screen import add_screen_parser
 from .errors import WellfaultError, WellfaultWarning
 
 __all__ = ["main"]
@@ -69,6 +70,9 @@ def _add_detect(sub):
     p.add_argument("--tolerance-floor", type=float, default=2.0, metavar="METRES",
                    help="absolute thickness tolerance floor in metres (default 2)")
     p.add_argument("--out", metavar="CUTS.csv", help="write the cut table here (default stdout)")
+    p.add_argument("--report", metavar="REPORT.html",
+                   help="also write a self-contained HTML report of the well (cut table, "
+                        "figures, assumptions, caution)")
     p.set_defaults(func=_cmd_detect)
 
 
@@ -105,6 +109,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_ArgumentParser)
     _add_demo(sub)
     _add_detect(sub)
+    add_screen_parser(sub)
     _add_survey(sub)
     return parser
 
@@ -160,6 +165,13 @@ def _cmd_detect(args) -> int:
         tolerance=TopsTolerance(args.tolerance, args.tolerance_floor))
     df = result.cuts
     _write_csv(df, args.out)
+    if args.report:
+        from .report import write_well_report
+
+        write_well_report(args.report, well=result.well, column=result.column, cuts_df=df,
+                          trajectory=result.trajectory, bed_dip=result.bed_dip,
+                          tops=result.tops, track=result.track, tolerance=result.tolerance)
+        print(f"report written to {args.report}", file=sys.stderr)
     suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
     print(_summarise(df, suffix), file=sys.stderr)
     print(CAUTION, file=sys.stderr)

@@ -45,7 +45,10 @@ class WellAnalysis:
     trajectory: Trajectory | None = None
     bed_dip: BedDip | None = None
     assumptions: FaultAssumptions | None = None
-    notes: list[str] = field(default_factory=list)
+    well: object | None = None
+    column: ReferenceColumn | None = None
+    tops: pd.DataFrame | None = None
+    tolerance: TopsTolerance | None = None
 
 
 def analyse_well(
@@ -141,7 +144,8 @@ def analyse_well(
         cuts = combine_evidence(cuts, res.cuts)
         track, alignment = res.track, res.alignment
     frame = cuts_to_frame(cuts, unit if unit is not None else well.depth_unit)
-    return WellAnalysis(frame, cuts, track, alignment, trajectory, bed_dip, assumptions)
+    return WellAnalysis(frame, cuts, track, alignment, trajectory, bed_dip, assumptions, well,
+                        column, picks, tolerance)
 
 
 def find_fault_cuts(well, column: ReferenceColumn, **kwargs) -> pd.DataFrame:
