@@ -24,7 +24,9 @@ def test_detect_with_curves_and_tops_writes_the_cut_and_a_report(tmp_path, capsy
     (cut,) = cuts.itertuples()
     # the high-angle well crosses the normal fault from footwall to hanging wall: repeated
     assert (cut.method, cut.section, cut.fault_type) == ("both", "repeated", "normal")
-    assert abs(cut.md_ft * 0.3048 - truth.md_m) < 1.0
+    # within its bracket and 2 m of the truth (a 78° well: 1 m of strat is ~5 m of hole)
+    assert cut.md_top_ft * 0.3048 <= truth.md_m <= cut.md_base_ft * 0.3048
+    assert abs(cut.md_ft * 0.3048 - truth.md_m) < 2.0
     html = report.read_text()
     assert "VR-6H" in html and "qualified geoscientist" in html and "<img" in html
     assert "qualified geoscientist" in capsys.readouterr().err
