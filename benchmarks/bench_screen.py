@@ -142,7 +142,8 @@ def run_one(args) -> dict:
         res = screen_wells(field["manifest"], field["column"], workers=args.workers,
                            client=client, progress=False, out_dir=out)
         secs = time.perf_counter() - t0
-        cpu = time.process_time() - cpu0 + sum(sampler.cpu.values()) - kids0
+        main_cpu = time.process_time() - cpu0
+        cpu = main_cpu + sum(sampler.cpu.values()) - kids0
         if client is not None:
             client.close()
             cluster.close()
@@ -156,8 +157,33 @@ def run_one(args) -> dict:
         "cuts": int(len(res.cuts)), "wells_with_cuts": wells_cut,
         "faults": int((res.faults["kind"] == "fault").sum()) if len(res.faults) else 0,
         "failed": int(len(res.errors)), "timings": res.info["timings"],
-        "cpu_s": cpu, "load": (load0 + os.getloadavg()[0]) / 2,
+        "cpu_s": cpu, "main_cpu_s": main_cpu, "load": (load0 + os.getloadavg()[0]) / 2,
     }
+
+
+def _spin(seconds: float) -> int:
+    """Pure-Python busy work for about ``seconds`` of one idle core (calibrated count)."""
+    n = 0
+    for _ in range(int(seconds * 2e7)):
+        n += 1
+    return n
+
+
+def calibrate() -> tuple[float, float]:
+    """Wall time of a fixed CPU task alone, and of two copies at once in two processes:
+    the parallel speed-up this machine offers right now (other work on it lowers it)."""
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(2) as pool:
+        pool.submit(_spin, 0.01).result()
+        t0 = time.perf_counter()
+        pool.submit(_spin, 1.0).result()
+        one = time.perf_counter() - t0
+        t0 = time.perf_counter()
+        for f in [pool.submit(_spin, 1.0) for _ in range(2)]:
+            f.result()
+        two = time.perf_counter() - t0
+    return one, two
 
 
 def main() -> None:
@@ -180,6 +206,10 @@ def main() -> None:
     root = Path(tempfile.mkdtemp(prefix="bench-screen-"))
     rows = []
     print(f"cores: {os.cpu_count()}; fields in {root}", flush=True)
+    one, two = calibrate()
+    print(f"machine check: a fixed CPU task takes {one:.2f} s alone and {two:.2f} s as two "
+          f"copies in two processes -> the 2 cores give {2 * one / two:.2f}x now "
+          f"(load average {os.getloadavg()[0]:.1f})", flush=True)
     for n in args.sizes:
         # drawn in a child process: this process stays small, and the runs (its children,
         # which inherit its peak resident size on Linux) measure their own memory
@@ -222,7 +252,8 @@ def main() -> None:
         t = r["timings"]
         print(f"{r['n']:>6} {r['mode']} x{r['workers']}: pass 1 {t.get('thickness', 0):.1f} s, "
               f"pass 2 {t.get('detect', 0):.1f} s, faults {t.get('faults', 0):.1f} s, "
-              f"re-measure {t.get('remeasure', 0):.1f} s"
+              f"re-measure {t.get('remeasure', 0):.1f} s; main process CPU "
+              f"{r['main_cpu_s']:.1f} s"
               + (f"; cluster start-up {r['start_s']:.1f} s (not counted)" if r["mode"] == "dask"
                  else ""))
     print("\n'serial' is workers=1 (in-process); CPU s is the CPU time of the main process and "

@@ -156,3 +156,11 @@ def test_neighbour_thickness_catches_what_the_column_tolerance_hides(trend_field
     assert (by_neighbours.wells["thickness_source"] == "neighbours").all()
     # the column run shows why: the trend alone makes 'cuts' where there is no fault
     assert _false(by_column.cuts, truth) > 50
+
+
+def test_a_well_without_location_has_no_neighbours():
+    samples = pd.DataFrame({"well": np.arange(10), "unit": 0, "thickness_m": 50.0,
+                            "x_m": np.arange(10) * 100.0, "y_m": 0.0})
+    model = NeighbourThickness(_column(), samples)
+    out = model.predict([0, 0], [np.nan, 450.0], [np.nan, 0.0], [99, 99])
+    assert np.isnan(out[0]) and out[1] == pytest.approx(50.0)

@@ -203,7 +203,9 @@ def bad_field(tmp_path_factory):
     bad.loc[bad["well"] == "CORRUPT", "las"] = "corrupt.las"
     lasrow = bad[bad["well"] == "EMPTY"].copy()
     lasrow["well"], lasrow["las"], lasrow["tops"] = "NOUNITLAS", "nounit.las", f"tops/{good[2]}.csv"
-    df = pd.concat([df, bad, lasrow], ignore_index=True)
+    noxy = df.iloc[[3]].copy()
+    noxy["well"], noxy["x_m"], noxy["y_m"], noxy["elevation_m"] = "NOXY", "", "", ""
+    df = pd.concat([df, bad, lasrow, noxy], ignore_index=True)
     path = folder / "manifest_bad.csv"
     df.to_csv(path, index=False)
     return path, folder / "column.csv", good
@@ -232,6 +234,9 @@ def test_bad_files_are_reported_and_the_rest_screened(bad_field):
     assert not err["message"].str.startswith("internal error").any()
     failed = r.wells.set_index("well").loc[list(err.index)]
     assert (failed["status"] == "failed").all() and (failed["checked_by"] == "").all()
+    # a well without surface location is screened against the column, not its neighbours
+    noxy = r.wells.set_index("well").loc["NOXY"]
+    assert noxy["status"] == "ok" and noxy["thickness_source"] == "column"
 
 
 def test_an_unexpected_exception_is_an_internal_error_row(small_field, monkeypatch):

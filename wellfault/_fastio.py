@@ -29,7 +29,6 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .errors import InputError
 from .units import DepthUnit, parse_depth_unit
 
 __all__ = ["Picks", "load_picks", "load_survey_arrays", "clear_cache"]
@@ -297,10 +296,3 @@ def _parse_survey(path: Path, given: DepthUnit | None):
         return None
     azi = np.where(azi == 360.0, 0.0, azi)
     return md * unit.metres, inc.copy(), azi
-
-
-def check_file(path) -> None:
-    """Raise the canonical 'file not found' when a manifest path does not exist."""
-    p = Path(path)
-    if not p.exists():
-        raise InputError(f"{p}: file not found; check the path")

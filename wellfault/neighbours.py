@@ -233,6 +233,12 @@ class NeighbourThickness:
         out = np.full(len(q), np.nan)
         if unit.tree is None or len(q) == 0:
             return out
+        placed = np.all(np.isfinite(q), axis=1)
+        if not placed.all():  # no location, no neighbours
+            if placed.any():
+                out[placed] = self._query(unit, q[placed, 0], q[placed, 1],
+                                          np.asarray(exclude_well)[placed])
+            return out
         n = unit.tree.n
         kk = min(self.k + 1, n)
         dist, idx = unit.tree.query(q, k=kk,

@@ -57,7 +57,7 @@ from .errors import InputError, WellfaultError, WellfaultWarning
 from .faultmap import BRACKET_COLUMNS, FaultFitOptions, FaultMap, fit_faults
 from .measure import FaultPlane
 from .neighbours import NeighbourThickness, thickness_samples
-from .results import LENGTH_FIELDS, FaultCut, cuts_to_frame
+from .results import FaultCut, cuts_to_frame
 from .topcuts import TopsTolerance
 from .units import DepthUnit, parse_depth_unit
 
@@ -296,7 +296,8 @@ def _pick_geometry(cfg: _Config, inp: _Inputs):
 
         n = bed_normal_vector(inp.bed_dip.dip_deg, inp.bed_dip.dip_azimuth_deg)
         if inp.survey is None:  # vertical below the surface location: P = (x0, y0, md)
-            x0, y0 = inp.x or 0.0, inp.y or 0.0
+            located = inp.x is not None and inp.y is not None
+            x0, y0 = (inp.x, inp.y) if located else (np.nan, np.nan)
             drilled = np.diff(md) * n[2]
             mid = np.column_stack([np.full(md.size - 1, x0), np.full(md.size - 1, y0),
                                    0.5 * (md[:-1] + md[1:])])
@@ -307,6 +308,8 @@ def _pick_geometry(cfg: _Config, inp: _Inputs):
         pos = inp.trajectory.position(md)
         drilled = inp.bed_dip.strat_travel(inp.trajectory, md[:-1], md[1:], picks.frame())
     mid = 0.5 * (pos[:-1] + pos[1:])
+    if inp.x is None or inp.y is None:  # no surface location: no place among neighbours
+        mid[:, :2] = np.nan
     return idx, md, np.asarray(drilled, dtype=float), mid
 
 
