@@ -3,31 +3,45 @@
 :func:`screen_wells` runs the same per-well function on every well of a manifest (DESIGN.md §6):
 
 * **pass 1 — thickness** (tops only, cheap): each well's consecutive picks give the
-  stratigraphic distance drilled between them; the field's unit thicknesses follow
-  (:mod:`wellfault.neighbours`);
-* **pass 2 — detection**: :func:`wellfault.detect.find_fault_cuts` on every well, its expected
-  intervals predicted from its neighbours (leave-one-out, robust, spatial) and a tight relative
+  stratigraphic distance drilled between them (``n·ΔP``, as tops evidence computes it); the
+  field's unit thicknesses follow (:mod:`wellfault.neighbours`);
+* **pass 2 — detection**: tops evidence (:func:`wellfault.topcuts.find_cuts_from_tops`, what
+  :func:`wellfault.detect.find_fault_cuts` runs for tops) with each well's expected intervals
+  predicted from its neighbours (leave-one-out, robust, spatial) and a tight relative
   tolerance (DESIGN.md §4: "Field screening replaces the column thickness by the local
   thickness predicted from neighbouring wells"); without neighbours (``neighbours=False``, or a
-  well whose intervals have no prediction) against the reference column and ``tolerance``;
+  well whose intervals have no prediction) against the reference column and ``tolerance``.
+  Pass 1 has already measured every interval, so the wells in which that comparison certainly
+  flags nothing (no interval beyond 90 % of its tolerance, no surface picked twice) are done
+  without a second reading (``tests/test_screen.py`` checks that this changes nothing);
 * **faults**: the cuts grouped into faults by robust plane fits (:mod:`wellfault.faultmap`),
   missing section at one level in many wells flagged as a possible unconformity;
-* **pass 3 — re-measure**: the wells holding cuts of a fitted fault are measured again with the
-  fitted planes (``planes=``), which give the crossing direction, fault type, throw and heave.
+* **pass 3 — re-measure**: the cuts of each fitted fault are measured again with the fitted
+  plane (:func:`wellfault.measure.measure_cut` with ``planes=``), which gives the crossing
+  direction, fault type, throw and heave. The measurement is first repeated without the planes
+  and must give the pass-2 cut again; otherwise the well is detected again with the planes.
 
 Wells are read where they are processed (in the worker), so memory does not grow with the
-field; one well's failure becomes one row of the error table and never stops the rest. The work
-runs serially (``workers=1``), on a local process pool (default: all cores, wells submitted in
-chunks) or on a Dask cluster (``client=``): the tables are the same whichever runs them (the
-``seconds`` column of the well table is a timing, not a result).
+field; one well's failure becomes one row of the error table (its file, the error type and
+message; ``internal error: ...`` for an exception wellfault did not raise on purpose) and never
+stops the rest. The work runs serially (``workers=1``), on a local process pool (default: all
+cores, wells submitted in chunks, at most two chunks per worker waiting) or on a Dask cluster
+(``client=``): the tables are the same whichever runs them (the ``seconds`` column of the well
+table is a timing, not a result). Worker processes are forked where that is safe (Linux, no
+other thread in this process) and started by a fork server otherwise, which, like Dask's
+local clusters, needs the ``if __name__ == "__main__":`` guard in scripts.
 
 With ``out_dir`` the tables are written there (CSV or Parquet, each file replaced in one step)
 and every finished well is checkpointed in ``out_dir/.wells/`` (one JSON line per well and pass,
-appended in one write and flushed), so that ``resume=True`` skips the wells already done after
-an interruption and gives the same tables.
+appended in one write and flushed; a line cut short by a crash is dropped), so that
+``resume=True`` skips the wells already done after an interruption and gives the same tables.
+A checkpoint made with other settings, another manifest or other versions of the input files
+is not resumed.
 
-The curve evidence (type well + alignment engine) has a hook here (``_Config.curves``,
-``_detect``) and is not wired yet: screening runs on tops.
+Curve evidence: the worker passes ``_Config.curves`` (curve settings for the alignment engine)
+to :func:`wellfault.detect.analyse_well` when it is set; :func:`screen_wells` accepts the
+type-well and curve arguments but does not set it yet (a warning says so): screening runs on
+tops.
 """
 
 from __future__ import annotations
@@ -1135,8 +1149,10 @@ def screen_wells(
             # ---------------------------------------------------------------- pass 2
             t0 = time.perf_counter()
 
+            curves_tag = "" if cfg.curves is None else "+curves"
+
             def extra_for(i: int) -> tuple:
-                plain = (None, tolerance, "tops", (), model is None)
+                plain = (None, tolerance, "tops" + curves_tag, (), model is None)
                 if model is None or i not in intervals:
                     return plain
                 ia = intervals[i][0].astype(np.int64)
@@ -1151,7 +1167,7 @@ def screen_wells(
                     if a != b:
                         expected.setdefault(key, []).append(float(v))
                 expected = {k: sum(v) / len(v) for k, v in expected.items()}
-                return (expected, tol_n, "tops+neighbours", (), False)
+                return (expected, tol_n, "tops+neighbours" + curves_tag, (), False)
 
             done2 = ckpt.loaded["detect"] if ckpt is not None else {}
             for rec in done2.values():
@@ -1245,7 +1261,7 @@ def screen_wells(
             "well": t.well, "status": "failed" if failed else "ok", "checked_by": by,
             "cuts_found": 0 if failed else int(counts.get(i, 0)),
             "seconds": float(seconds[i]), "n_picks": int(n_picks[i]),
-            "thickness_source": "" if failed else ("neighbours" if by == "tops+neighbours"
+            "thickness_source": "" if failed else ("neighbours" if "neighbours" in by
                                                    else "column"),
             "warnings": "; ".join(warns[i]),
         })
