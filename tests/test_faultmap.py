@@ -116,7 +116,7 @@ def test_missing_section_at_one_level_is_a_possible_unconformity():
     fmap = fit_faults(cuts, column=col, crossing_counts={j: 16 for j in range(8)})
     faults, _ = fmap.tables(cuts)
     unc = faults[faults["kind"] == "possible unconformity"]
-    assert len(unc) == 1 and unc.iloc[0]["level"] == "S5"
+    assert len(unc) == 1 and unc.iloc[0]["level"] == "S4 to S5"
     assert unc.iloc[0]["dip_deg"] == pytest.approx(5.0, abs=1.0)
     assert list(fmap.fit[:n]) == ["possible unconformity"] * n
     assert (faults["kind"] == "fault").sum() == 1
@@ -188,3 +188,39 @@ def test_unfaulted_wells_make_no_cut(three_fault_field):
     faulted = set(truth["well"])
     assert set(result.cuts["well"]) <= faulted
     assert len(result.errors) == 0
+
+
+def test_eroded_unit_is_flagged_end_to_end(tmp_path):
+    """A unit thinned to 35 % over the western two thirds of a field (eroded): against the
+    column every western well misses section at that level; it is a possible unconformity,
+    and the one real fault is still fitted."""
+    col = synthetic_column(12, seed=4, curves=(), thickness_range_m=(30.0, 50.0))
+    beds = Beds.through(3.0, 70.0, (0.0, 0.0, 1500.0), 0.0)
+    fault = PlanarFault.dip_slip(60, 85, (1200, 1500, 1800), 40, name="A")
+
+    def eroded(x, y):
+        f = np.ones((len(x), len(col)))
+        f[x < 2200, 6] = 0.35
+        return f
+
+    plan = plan_wells(120, seed=3, target_tvdss_m=2300.0, extent_m=(0, 3000, 0, 3000),
+                      deviated_fraction=0.2)
+    tops, _ = field_tops(plan, col, beds, [fault], pick_noise_m=0.3, seed=5,
+                         thickness_factors=eroded)
+    man = write_field(tmp_path, plan, tops, col, dip="3/070")
+    r = screen_wells(man, tmp_path / "column.csv", workers=1, progress=False,
+                     neighbours=False)
+    unc = r.faults[r.faults["kind"] == "possible unconformity"]
+    assert len(unc) == 1
+    assert unc.iloc[0]["level"] == f"{col.names[6]} to {col.names[7]}"
+    assert unc.iloc[0]["n_wells"] >= 50
+    flagged = r.cuts[r.cuts["fault_fit"] == "possible unconformity"]
+    assert (flagged["section"] == "missing").all()
+    # the eroded unit lies inside every flagged bracket
+    index = {n: i for i, n in enumerate(col.names)}
+    above = flagged["surface_above"].map(index)
+    below = flagged["surface_below"].map(index)
+    assert ((above <= 6) & (below >= 7)).all()
+    assert (above == 6).mean() > 0.9
+    faults = r.faults[r.faults["kind"] == "fault"]
+    assert len(faults) == 1 and faults.iloc[0]["dip_deg"] == pytest.approx(60, abs=5)

@@ -8,9 +8,10 @@ fault. :func:`fit_faults` finds those planes:
 1. **Possible unconformities first.** Missing section at one stratigraphic level in many wells
    (the same column surface inside the bracket of missing-section cuts in at least
    ``unconformity_min_wells`` wells, and in at least ``unconformity_fraction`` of the wells that
-   drilled across that level when those counts are given) whose cuts lie on one surface parallel
-   to bedding is flagged ``possible unconformity``, not fitted as a fault: erosion removes
-   section at a stratigraphic level, a fault removes it along a plane that cuts the beds.
+   drilled across that level when those counts are given) that no fault plane explains (the
+   fault search below, run on those cuts alone, holds fewer than half of them) is flagged
+   ``possible unconformity``, not fitted as a fault: erosion removes section at one
+   stratigraphic level wherever it reached, a fault removes it along a plane that cuts the beds.
 2. **Locally sampled RANSAC** (Fischler & Bolles 1981; neighbourhood sampling after
    Myatt et al. 2002, "NAPSAC"): every cut is a seed; planes through the seed and pairs of its
    nearest cuts in other wells are hypotheses; a hypothesis is scored on the cuts within
@@ -34,6 +35,7 @@ right-hand-rule strike = dip azimuth − 90 (DESIGN.md §2).
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass, field
 
@@ -83,7 +85,6 @@ class FaultFitOptions:
     seed: int = 0
     unconformity_min_wells: int = 5
     unconformity_fraction: float = 0.5
-    unconformity_tolerance_m: float = 25.0
     max_refinements: int = 12
 
     def __post_init__(self):
@@ -108,7 +109,7 @@ class FaultFit:
     azimuth_sd_deg: float
     rms_m: float
     members: NDArray[np.int64]
-    level: str = ""
+    level: str = ""  # possible unconformity: the unit whose section is missing
 
     @property
     def strike_deg(self) -> float:
@@ -523,7 +524,13 @@ def _bootstrap(p, h, n0, o: FaultFitOptions, rng) -> tuple[float, float]:
 
 def _unconformities(cuts, pts, hb, wells, bed_n, free, column, crossing_counts,
                     o: FaultFitOptions) -> list[FaultFit]:
-    """Missing section at one stratigraphic level in many wells, on a bedding-parallel surface."""
+    """Missing section at one stratigraphic level in many wells, not on one fault plane.
+
+    Levels are the column's surfaces: a missing-section cut is at level j when surface j lies
+    inside the interval its picks bracket. The most populated level first: enough wells, a large
+    enough share of the wells that crossed the level (when known), and no fault plane holding
+    half of the cuts (a fault crossing many wells at one level, in a flat field, is a fault).
+    """
     index = {n: i for i, n in enumerate(column.names)}
     ia = cuts["surface_above"].astype(str).map(index).to_numpy(dtype=float)
     ib = cuts["surface_below"].astype(str).map(index).to_numpy(dtype=float)
@@ -536,7 +543,8 @@ def _unconformities(cuts, pts, hb, wells, bed_n, free, column, crossing_counts,
     for j in range(1, len(column)):
         sel = missing & (lo < j) & (j <= hi)
         levels.append((np.unique(wells[sel]).size, j))
-    for count, j in sorted(levels, key=lambda t: (-t[0], t[1])):
+    plain = dataclasses.replace(o, bootstrap=0)
+    for _count, j in sorted(levels, key=lambda t: (-t[0], t[1])):
         sel = np.flatnonzero(missing & ~used & (lo < j) & (j <= hi))
         n_wells = np.unique(wells[sel]).size
         if n_wells < o.unconformity_min_wells:
@@ -545,20 +553,22 @@ def _unconformities(cuts, pts, hb, wells, bed_n, free, column, crossing_counts,
             crossed = crossing_counts.get(j, 0)
             if crossed <= 0 or n_wells / crossed < o.unconformity_fraction:
                 continue
-        nb = bed_n[sel].mean(axis=0)
-        nb = nb / np.linalg.norm(nb)
-        e = pts[sel] @ nb
-        c0 = float(np.median(e))
-        inl = np.abs(e - c0) <= np.abs(hb[sel] @ nb) + o.unconformity_tolerance_m
-        members = sel[inl]
-        if np.unique(wells[members]).size < o.unconformity_min_wells or \
-                members.size < 0.6 * sel.size:
+        sub = fit_faults(cuts.iloc[sel], options=plain)
+        on_fault = sel[sub.fit == "fault"]
+        if on_fault.size >= 0.5 * sel.size:
+            continue  # mostly one or more fault planes: leave them to the fault fit
+        members = np.setdiff1d(sel, on_fault)
+        if np.unique(wells[members]).size < o.unconformity_min_wells:
             continue
         used[members] = True
+        nb = bed_n[members].mean(axis=0)
+        nb = nb / np.linalg.norm(nb)
         n = _up(-nb)
         c = pts[members].mean(axis=0)
+        e = (pts[members] - c) @ nb
         dip, azi = plane_attitude(n)
-        rms = float(np.sqrt(np.mean((e[inl] - c0) ** 2)))
+        rms = float(np.sqrt(np.mean(e ** 2)))
         out.append(FaultFit("", "possible unconformity", n, c, dip, azi, math.nan, math.nan,
-                            rms, np.sort(members), level=column.names[j]))
+                            rms, np.sort(members),
+                            level=f"{column.names[j - 1]} to {column.names[j]}"))
     return out

@@ -503,6 +503,9 @@ def _run_one(cfg: _Config, kind: str, task: WellTask, extra) -> dict:
                 out["c"] = [_cut_dict(c) for c in cuts]
                 out["b"] = _brackets(inp, cuts)
                 out["by"] = by
+                if precheck:  # one pass: the picks' column indices, for level statistics
+                    index = {nm: k for k, nm in enumerate(cfg.column.names)}
+                    out["ix"] = [index.get(str(x), -1) for x in inp.picks.surface]
             if len(inp.picks) < 2:
                 out["w"].append(f"{len(inp.picks)} pick(s): nothing to compare")
         except WellfaultError as err:
@@ -1091,6 +1094,7 @@ def screen_wells(
     # pass 1, per well: one (5, n) array of column index above, below, drilled TST, x, y
     intervals: dict[int, np.ndarray] = {}
     checked_by = np.full(n, "", dtype=object)
+    pick_ix: dict[int, np.ndarray] = {}  # one pass: column index of each pick
     cut_out: dict[int, dict] = {}
     timings: dict[str, float] = {}
 
@@ -1111,6 +1115,8 @@ def screen_wells(
             intervals[i] = np.asarray(o["iv"], dtype=float).reshape(5, -1)
         elif o["p"] == "detect":
             checked_by[i] = o["by"]
+            if "ix" in o:
+                pick_ix[i] = np.asarray(o["ix"], dtype=np.int64)
             if o["c"]:
                 cut_out[i] = {"c": o["c"], "b": o["b"]}
         else:  # remeasure: replace the cuts of fitted faults, keep the others
@@ -1196,7 +1202,9 @@ def screen_wells(
             cuts_m = _cut_frame(records, brackets)
             fmap = None
             if fit and len(cuts_m):
-                crossing = _crossing_counts(col, pairs) if model is not None else None
+                if model is None:
+                    pairs = _pairs_from_picks(pick_ix)
+                crossing = _crossing_counts(col, pairs)
                 fmap = fit_faults(cuts_m, options=fault_options, column=col,
                                   crossing_counts=crossing)
             timings["faults"] = time.perf_counter() - t0
@@ -1355,6 +1363,22 @@ def _dirty_wells(col: ReferenceColumn, pairs, tol_n: TopsTolerance, tol_c: TopsT
     same = (pw[order][1:] == pw[order][:-1]) & (pidx[order][1:] == pidx[order][:-1])
     dirty |= set(pw[order][1:][same].tolist())
     return dirty, set(wells[all_finite].tolist())
+
+
+def _pairs_from_picks(pick_ix: dict):
+    """(well, index above, index below) of consecutive picks, from each well's pick indices."""
+    w, a, b = [], [], []
+    for i in sorted(pick_ix):
+        ix = pick_ix[i]
+        ix = ix[ix >= 0]
+        if ix.size >= 2:
+            w.append(np.full(ix.size - 1, i, dtype=np.int64))
+            a.append(ix[:-1])
+            b.append(ix[1:])
+    if not w:
+        z = np.zeros(0, dtype=np.int64)
+        return z, z, z
+    return np.concatenate(w), np.concatenate(a), np.concatenate(b)
 
 
 def _crossing_counts(col: ReferenceColumn, pairs) -> dict[int, int]:
