@@ -81,7 +81,7 @@ class FaultFitOptions:
     max_gap_m: float = 3000.0
     min_dip_deg: float = 20.0
     min_bedding_angle_deg: float = 15.0
-    bootstrap: int = 200
+    bootstrap: int = 100
     seed: int = 0
     unconformity_min_wells: int = 5
     unconformity_fraction: float = 0.5
@@ -258,10 +258,10 @@ def _weighted_plane(p, h, n0, sd0, iterations=6):
         scatter = (w[:, None] * d).T @ d
         vals, vecs = np.linalg.eigh(scatter)
         n_new = _up(vecs[:, 0])
-        if np.allclose(n_new, n, atol=1e-10):
-            n = n_new
-            break
+        done = float(np.max(np.abs(n_new - n))) < 1e-10
         n = n_new
+        if done:
+            break
     e = (p - c) @ n
     rms = float(np.sqrt(np.mean(e ** 2))) if len(e) else 0.0  # mid-bracket residuals
     return n, c, rms

@@ -33,8 +33,9 @@ local clusters, needs the ``if __name__ == "__main__":`` guard in scripts.
 
 With ``out_dir`` the tables are written there (CSV or Parquet, each file replaced in one step)
 and every finished well is checkpointed in ``out_dir/.wells/`` (one JSON line per well and pass,
-appended in one write and flushed; a line cut short by a crash is dropped), so that
-``resume=True`` skips the wells already done after an interruption and gives the same tables.
+appended in one write, flushed every half second; a line cut short by a crash is dropped), so
+that ``resume=True`` skips the wells already done after an interruption and gives the same
+tables.
 A checkpoint made with other settings, another manifest or other versions of the input files
 is not resumed.
 
@@ -752,8 +753,8 @@ class _Runner:
 class _Checkpoint:
     """Per-well results of a run in ``DIR/.wells/``: one JSON line per (pass, well).
 
-    Each line is written with one ``write`` call and flushed as its well finishes; a line cut
-    short by a crash is dropped on reading. ``run.json`` holds the fingerprint of the run's
+    Each line is written with one ``write`` call as its well finishes and flushed at least
+    every half second (and at the end); a line cut short by a crash is dropped on reading. ``run.json`` holds the fingerprint of the run's
     settings and manifest: resuming a different run is refused.
     """
 
@@ -763,6 +764,7 @@ class _Checkpoint:
         self.loaded: dict[str, dict[int, dict]] = {"thickness": {}, "detect": {},
                                                    "remeasure": {}}
         self._files: dict = {}
+        self._flushed = time.monotonic()
         run = self.folder / "run.json"
         if resume and run.is_file():
             stored = json.loads(run.read_text(encoding="utf-8")).get("fingerprint")
@@ -807,7 +809,10 @@ class _Checkpoint:
             fh = self._files[kind] = open(self._path(kind), "a", encoding="utf-8")
         for o in outcomes:
             fh.write(json.dumps(o, separators=(",", ":")) + "\n")
-        fh.flush()
+        now = time.monotonic()
+        if now - self._flushed > 0.5:  # at most half a second of wells to redo after a crash
+            fh.flush()
+            self._flushed = now
 
     def close(self) -> None:
         for fh in self._files.values():
@@ -904,7 +909,8 @@ def _fingerprint(cfg: _Config, tasks: list[WellTask], settings: dict) -> str:
         "planes": [dataclasses.asdict(p) for p in cfg.planes],
         "depth_unit": cfg.depth_unit,
         "settings": settings,
-        "wells": [dataclasses.astuple(t) for t in tasks],
+        "wells": [[t.index, t.well, t.las, t.survey, t.tops, t.dip, t.x_m, t.y_m,
+                   t.elevation_m, t.depth_unit] for t in tasks],
         # the files as they are now: a checkpoint made from other versions is not resumed
         "files": [[_stamp(f) for f in (t.las, t.survey, t.tops, t.dip)] for t in tasks],
     }
