@@ -278,10 +278,10 @@ def test_cli_exit_codes_summary_and_caution(bad_field, small_field, tmp_path, ca
     assert "nope.csv" in capsys.readouterr().err
     assert screen_main([str(man2), "--out", str(tmp_path / "x")]) == 2
     assert screen_main([str(man2), "--column", str(column2)]) == 2  # --out is required
-    # curve options are accepted; the engine is not wired into screening yet: a warning
+    # curves without a type well: bad usage, naming what is missing
     code = screen_main([str(man2), "--column", str(column2), "--out", str(tmp_path / "c"),
                         "--workers", "1", "--no-progress", "--curve", "GR", "--no-faults"])
-    assert code == 0 and "curve evidence" in capsys.readouterr().err
+    assert code == 2 and "--type-well" in capsys.readouterr().err
 
 
 def test_manifest_and_argument_errors(tmp_path, small_field):
@@ -435,3 +435,23 @@ def test_remeasuring_without_detecting_again_changes_nothing(small_field, serial
     for name in ("errors", "faults", "fault_profiles"):
         pd.testing.assert_frame_equal(getattr(serial_result, name), getattr(again, name),
                                       rtol=1e-9)
+
+
+def test_screening_with_curves_finds_every_demo_cut_on_the_sample():
+    """Curve evidence in screening: the invented field's type well VR-1 as type log; every
+    true cut (synthetic_wells/truth_cuts.csv) is found by curves (method curves or both),
+    placed within its bracket."""
+    from conftest import REPO_ROOT
+
+    field = REPO_ROOT / "synthetic_wells"
+    res = screen_wells(field / "manifest.csv", field / "column.csv",
+                       type_well=field / "VR_1.las", type_tops=field / "tops.csv",
+                       workers=1, progress=False, fit=False)
+    assert len(res.errors) == 0
+    truth = pd.read_csv(field / "truth_cuts.csv")
+    cuts = res.cuts
+    for tr in truth.itertuples():
+        mine = cuts[(cuts.well == tr.well) & cuts.method.isin(["curves", "both"])
+                    & (cuts.md_top_m <= tr.md_m) & (tr.md_m <= cuts.md_base_m)]
+        assert len(mine) == 1, tr.well
+        assert mine.iloc[0].section == tr.section

@@ -38,11 +38,12 @@ def add_screen_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--column", metavar="COLUMN.csv",
                    help="reference column: surface, thickness_<unit> [, unconformity]")
     p.add_argument("--type-well", metavar="TYPE.las",
-                   help="type well for curve evidence (accepted; curve evidence is not wired "
-                        "into screening yet, wells are screened by tops)")
+                   help="type well: each well's curves are also aligned to its type log "
+                        "(curve evidence beside the tops)")
     p.add_argument("--type-tops", metavar="TYPE_TOPS.csv", help="the type well's tops")
     p.add_argument("--curve", action="append", metavar="NAME[:WEIGHT]",
-                   help="curve to align (repeatable; accepted, see --type-well)")
+                   help="curve to align, repeatable with weights (default GR; needs "
+                        "--type-well)")
     p.add_argument("--dip", metavar="DIP/AZI",
                    help="bed dip for wells without their own in the manifest, e.g. 12/075")
     p.add_argument("--out", metavar="DIR", required=True,

@@ -908,6 +908,7 @@ def _fingerprint(cfg: _Config, tasks: list[WellTask], settings: dict) -> str:
         "tolerance": dataclasses.asdict(cfg.tolerance),
         "planes": [dataclasses.asdict(p) for p in cfg.planes],
         "depth_unit": cfg.depth_unit,
+        "curves": None if cfg.curves is None else repr(cfg.curves),
         "settings": settings,
         "wells": [[t.index, t.well, t.las, t.survey, t.tops, t.dip, t.x_m, t.y_m,
                    t.elevation_m, t.depth_unit] for t in tasks],
@@ -1016,8 +1017,10 @@ def screen_wells(
         A mapped fault model given by the user (cuts take their attitude, see
         :class:`~wellfault.measure.FaultAssumptions`).
     type_well, type_tops, curves
-        Curve evidence (type well, its tops, curve names): accepted, not wired to the
-        alignment engine yet — a warning says so and screening runs on tops.
+        Curve evidence: the type well (LAS path, or a ReferenceColumn that carries a type log)
+        and its tops; ``curves`` names the curves (``["GR", "RHOB:0.5"]`` or a CurveSettings;
+        default GR). Each well's curves are then aligned to the type log as well, and its
+        cuts combine both kinds of evidence.
     neighbours : bool
         Two-pass screening with neighbour-aware thickness (default). False: one pass against
         the column.
@@ -1062,12 +1065,27 @@ def screen_wells(
         raise InputError("resume needs the output folder of the run to resume (out_dir / --out)")
     if str(fmt).lower() not in ("csv", "parquet"):
         raise InputError(f"output format {fmt!r} is not known; use csv or parquet")
-    if any(v is not None for v in (type_well, type_tops, curves)):
-        warnings.warn("curve evidence (type well, curves) is not wired into field screening "
-                      "yet; the wells are screened by their tops", WellfaultWarning,
-                      stacklevel=2)
     manifest = _as_manifest(manifest, depth_unit)
-    col = _as_column(column, depth_unit)
+    curve_settings = None
+    if type_well is not None:
+        from .curvecuts import CurveSettings
+        from .detect import load_column
+
+        if isinstance(type_well, ReferenceColumn):
+            col = type_well
+        else:
+            col = load_column(column=column if isinstance(column, (str, Path)) else None,
+                              type_well=type_well, type_tops=type_tops,
+                              bed_dip=_as_bed_dip(bed_dip),
+                              depth_unit=None if depth_unit is None
+                              else parse_depth_unit(depth_unit))
+        curve_settings = curves if isinstance(curves, CurveSettings) else \
+            CurveSettings.make(curves or ["GR"])
+    elif curves is not None or type_tops is not None:
+        raise InputError("curve evidence needs the type well: give --type-well TYPE.las and "
+                         "--type-tops TYPE_TOPS.csv (or type_well=, type_tops=)")
+    else:
+        col = _as_column(column, depth_unit)
     tasks = _tasks(manifest)
     if not tasks:
         raise InputError("the manifest lists no wells; add one row per well")
@@ -1076,7 +1094,8 @@ def screen_wells(
         if not isinstance(p, FaultPlane):
             raise InputError(f"planes must be FaultPlane objects (got {type(p).__name__})")
     cfg = _Config(col, _as_bed_dip(bed_dip), tolerance, planes,
-                  None if depth_unit is None else parse_depth_unit(depth_unit).value)
+                  None if depth_unit is None else parse_depth_unit(depth_unit).value,
+                  curve_settings)
     if workers is None:
         workers = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else \
             (os.cpu_count() or 1)
