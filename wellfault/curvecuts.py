@@ -28,7 +28,8 @@ from .measure import FaultAssumptions, measure_cut
 from .results import FaultCut
 
 __all__ = ["CurveSettings", "CurveResult", "align_well", "find_cuts_from_curves",
-           "combine_evidence", "predicted_steps", "parse_curve_spec"]
+           "find_cuts_dtw_baseline", "find_cuts_lag_screen", "combine_evidence",
+           "predicted_steps", "parse_curve_spec"]
 
 
 @dataclass(frozen=True)
@@ -38,15 +39,34 @@ class CurveSettings:
     ``curves`` maps curve mnemonic → weight (``{"GR": 1.0}``); ``min_jump_m`` is the smallest
     jump reported as a cut (smaller jumps absorb local mis-ties; about two to three times the
     gamma-ray vertical resolution, methods.md §7, common practice); ``engine`` holds keyword
-    arguments for :class:`wellfault.align.AlignmentEngine` (stretch, jump_penalty, ...).
+    arguments for :class:`wellfault.align.AlignmentEngine` (stretch, jump_penalty, ...), which
+    override the lengths below once converted to type-log samples:
+
+    * ``off_log_m`` — strat length of the off-the-type-log margins above the type log's top
+      and below its base (engine ``off_log``): where the well drills rock the type log does
+      not cover, its path runs there at a constant misfit instead of being forced into
+      spurious jumps; a jump with either side off the log is never reported as a cut. 0 turns
+      the margins off.
+    * ``calibrate_window_m`` — window of the gain/offset-free running standardisation of the
+      calibration pre-pass (engine ``calibrate_window``).
+
+    ``min_confidence`` is the least calibrated confidence of a reported cut (default 0.01: a
+    jump the evidence gives under 1 % of being real — in practice a well that does not
+    correlate with the type log there, e.g. rock the type log does not cover — is left in
+    ``CurveResult.alignment.jumps`` but not reported).
     """
 
     curves: tuple[tuple[str, float], ...] = (("GR", 1.0),)
     min_jump_m: float = 2.0
     engine: tuple[tuple[str, object], ...] = ()
+    off_log_m: float = 150.0
+    calibrate_window_m: float = 9.0
+    min_confidence: float = 0.01
 
     @classmethod
-    def make(cls, curves=None, *, min_jump_m: float = 2.0, **engine) -> CurveSettings:
+    def make(cls, curves=None, *, min_jump_m: float = 2.0, off_log_m: float = 150.0,
+             calibrate_window_m: float = 9.0, min_confidence: float = 0.01,
+             **engine) -> CurveSettings:
         if curves is None:
             spec: tuple[tuple[str, float], ...] = (("GR", 1.0),)
         elif isinstance(curves, dict):
@@ -56,7 +76,15 @@ class CurveSettings:
                          for c in curves)
         if not spec:
             raise InputError("no curves to align; name at least one, e.g. --curve GR")
-        return cls(spec, float(min_jump_m), tuple(sorted(engine.items())))
+        return cls(spec, float(min_jump_m), tuple(sorted(engine.items())), float(off_log_m),
+                   float(calibrate_window_m), float(min_confidence))
+
+    def engine_kwargs(self, ds_m: float) -> dict:
+        """Keyword arguments for the engine on a type log of step ``ds_m``."""
+        kw = dict(off_log=int(math.ceil(max(self.off_log_m, 0.0) / ds_m)),
+                  calibrate_window=int(round(max(self.calibrate_window_m, 0.0) / ds_m)))
+        kw.update(dict(self.engine))
+        return kw
 
 
 def parse_curve_spec(text: str) -> tuple[str, float]:
@@ -129,12 +157,19 @@ def _curve_matrix(well, column: ReferenceColumn, settings: CurveSettings
             tuple(names))
 
 
-def align_well(well, column: ReferenceColumn, trajectory, *, bed_dip: BedDip | None = None,
-               settings: CurveSettings = CurveSettings(), picks=None):
-    """Align the well's curves to the type log; returns (Alignment, s of every sample [m])."""
-    from .align import AlignmentEngine
+@dataclass(frozen=True)
+class _Inputs:
+    x: np.ndarray          # (N, C) well curves
+    ref: np.ndarray        # (M, C) type-log curves
+    weights: np.ndarray
+    names: tuple[str, ...]
+    md: np.ndarray         # (N,) [m]
+    step: np.ndarray       # (N,) predicted strat increment [reference samples]
+    ds: float              # type-log step [m]
+    s0: float              # s of the first type-log sample [m]
 
-    bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
+
+def _inputs(well, column, trajectory, bed_dip, settings, picks) -> _Inputs:
     x, ref, weights, names = _curve_matrix(well, column, settings)
     ds = float(column.type_log_step_m)
     s0 = float(column.type_log.index[0])
@@ -145,10 +180,41 @@ def align_well(well, column: ReferenceColumn, trajectory, *, bed_dip: BedDip | N
     if np.all(np.isnan(x)):
         raise InputError(f"well {well.name!r}: curves {list(names)} are null everywhere")
     step = predicted_steps(md, trajectory, bed_dip, picks) / ds
-    engine = AlignmentEngine(ref, weights=weights, **dict(settings.engine))
-    alignment = engine.align(x, step)
-    s = s0 + np.asarray(alignment.path, dtype=float) * ds
-    return alignment, s, names
+    return _Inputs(x, ref, weights, names, md, step, ds, s0)
+
+
+def align_well(well, column: ReferenceColumn, trajectory, *, bed_dip: BedDip | None = None,
+               settings: CurveSettings = CurveSettings(), picks=None):
+    """Align the well's curves to the type log; returns (Alignment, s of every sample [m],
+    curve names). ``s`` is NaN where the path runs off the type log."""
+    from .align import AlignmentEngine
+
+    bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
+    inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
+    engine = AlignmentEngine(inp.ref, weights=inp.weights, **settings.engine_kwargs(inp.ds))
+    alignment = engine.align(inp.x, inp.step)
+    s = inp.s0 + np.asarray(alignment.path, dtype=float) * inp.ds
+    if alignment.on_log is not None:
+        s = np.where(alignment.on_log, s, np.nan)        # off the type log: not placed
+    return alignment, s, inp.names
+
+
+def _measured(well, column, trajectory, bed_dip, assumptions, picks, inp: _Inputs, *,
+              sample: int, first: int, last: int, delta_s_m: float, j_before: float,
+              j_after: float, confidence: float, method: str, note: str) -> FaultCut:
+    """A FaultCut at well sample ``sample`` (first below), bracket samples ``first..last``,
+    reference positions ``j_before``/``j_after`` of the samples either side."""
+    md = inp.md
+    md_top = float(md[max(first - 1, 0)])
+    md_base = float(md[min(last, md.size - 1)])
+    above, below = column.unit_at(np.array([inp.s0 + j_before * inp.ds,
+                                            inp.s0 + j_after * inp.ds]))
+    return measure_cut(
+        well=str(well.name), method=method, md_m=float(md[int(sample)]),
+        md_top_m=md_top, md_base_m=md_base, delta_s_m=float(delta_s_m), trajectory=trajectory,
+        bed_dip=bed_dip, assumptions=assumptions, picks=picks,
+        surface_above=str(above or ""), surface_below=str(below or ""),
+        confidence=float(confidence), notes=[note])
 
 
 def find_cuts_from_curves(
@@ -163,38 +229,168 @@ def find_cuts_from_curves(
 ) -> CurveResult:
     """Find, classify and measure the fault cuts that a well's curves show.
 
-    Returns the cuts (``method="curves"``) and the well's stratigraphic position track.
-    A jump of the alignment smaller than ``settings.min_jump_m`` is not a cut.
+    Returns the cuts (``method="curves"``) and the well's stratigraphic position track
+    (``s_m`` NaN and confidence 0 where the well is off the type log).
+    A jump of the alignment smaller than ``settings.min_jump_m`` is not a cut, nor is a jump
+    with either side off the type log or on its first or last sample (the well leaves the
+    strat range the type log covers there; the jump's size is unknown), nor one whose
+    confidence is under ``settings.min_confidence``. Each cut's ``extra``
+    holds the engine's evidence: ``margin``, ``correlation``, ``rows_above``, ``rows_below``.
     """
+    from .align import AlignmentEngine
+
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
-    alignment, s, names = align_well(well, column, trajectory, bed_dip=bed_dip,
-                                     settings=settings, picks=picks)
-    ds = float(column.type_log_step_m)
-    s0 = float(column.type_log.index[0])
-    md = well.curves.index.to_numpy(float)
-    units = column.unit_at(s)
-    track = pd.DataFrame({"md_m": md, "s_m": s, "unit": units,
-                          "confidence": np.asarray(alignment.confidence, dtype=float)})
+    inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
+    engine = AlignmentEngine(inp.ref, weights=inp.weights, **settings.engine_kwargs(inp.ds))
+    alignment = engine.align(inp.x, inp.step)
+    s = inp.s0 + np.asarray(alignment.path, dtype=float) * inp.ds
+    if alignment.on_log is not None:
+        s = np.where(alignment.on_log, s, np.nan)        # off the type log: not placed
+    ds, names = inp.ds, inp.names
+    conf = np.asarray(alignment.confidence, dtype=float)
+    track = pd.DataFrame({"md_m": inp.md, "s_m": s, "unit": column.unit_at(s),
+                          "confidence": np.where(np.isfinite(s), conf, 0.0)})
+    end = len(column.type_log) - 1
     cuts: list[FaultCut] = []
     for j in alignment.jumps:
         ds_m = float(j.size) * ds
         if abs(ds_m) < settings.min_jump_m:
             continue
+        ends = (float(j.j_before), float(j.j_after))
+        if getattr(j, "off_log", False) or not all(0.5 <= v <= end - 0.5 for v in ends):
+            continue
+        if not float(j.confidence) >= settings.min_confidence:
+            continue
         first, last = (int(v) for v in j.bracket)
-        md_top = float(md[max(first - 1, 0)])
-        md_base = float(md[min(last, md.size - 1)])
-        s_above = s0 + float(j.j_before) * ds
-        s_below = s0 + float(j.j_after) * ds
-        above, below = column.unit_at(np.array([s_above, s_below]))
-        cuts.append(measure_cut(
-            well=str(well.name), method="curves", md_m=float(md[int(j.sample)]),
-            md_top_m=md_top, md_base_m=md_base, delta_s_m=ds_m, trajectory=trajectory,
-            bed_dip=bed_dip, assumptions=assumptions, picks=picks,
-            surface_above=str(above or ""), surface_below=str(below or ""),
-            confidence=float(j.confidence),
-            notes=[f"curves {', '.join(names)} aligned to the type log"],
-        ))
+        cut = _measured(well, column, trajectory, bed_dip, assumptions, picks, inp,
+                        sample=int(j.sample), first=first, last=last, delta_s_m=ds_m,
+                        j_before=ends[0], j_after=ends[1], confidence=float(j.confidence),
+                        method="curves",
+                        note=f"curves {', '.join(names)} aligned to the type log")
+        cut.extra.update(margin=float(j.margin), correlation=float(j.correlation),
+                         rows_above=int(j.rows_above), rows_below=int(j.rows_below))
+        cuts.append(cut)
     return CurveResult(cuts, track, alignment, names)
+
+
+def find_cuts_dtw_baseline(
+    well,
+    column: ReferenceColumn,
+    trajectory,
+    *,
+    bed_dip: BedDip | None = None,
+    settings: CurveSettings = CurveSettings(),
+    assumptions: FaultAssumptions = FaultAssumptions(),
+    picks=None,
+) -> CurveResult:
+    """The published baseline: monotone DTW of the well against the type log, cuts read from
+    its path (:func:`wellfault.align.dtw_cuts`). For benchmarks, not for use.
+
+    Same inputs as :func:`find_cuts_from_curves` and the same preparation — the engine's
+    calibrated standardisation, the well resampled on rows one type-log sample apart in
+    predicted strat (:func:`wellfault.align.resample_strat`), the engine's Huber misfit —
+    so only the alignment model differs: open-begin/open-end DTW
+    (:func:`wellfault.align.dtw_subsequence`) instead of the jump DP. The type log is read
+    backwards for a well drilling mostly up-section (a monotone path has one direction).
+    Cuts of at least ``settings.min_jump_m`` are reported with confidence NaN (DTW has no
+    evidence measure); ``alignment`` holds the DTW result.
+    """
+    from .align import AlignmentEngine, dtw_cuts, dtw_subsequence, resample_strat
+
+    bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
+    inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
+    kw = settings.engine_kwargs(inp.ds)
+    kw["off_log"] = 0
+    engine = AlignmentEngine(inp.ref, weights=inp.weights, **kw)
+    center, scale = engine.calibrate(inp.x, inp.step)
+    zr = engine._prepared()["ref_t"].T
+    m = zr.shape[0]
+    orient = 1.0 if float(np.sum(inp.step)) >= 0 else -1.0
+    rows = resample_strat((inp.x - center) / scale, orient * inp.step,
+                          min_rate=float(engine.min_rate))
+    ref_o = zr if orient > 0 else zr[::-1]
+    res = dtw_subsequence(np.nan_to_num(rows.values, nan=np.nan), np.ascontiguousarray(ref_o),
+                          weights=inp.weights, huber_delta=float(engine.huber_delta))
+    lag, found = dtw_cuts(res.path, rows.n_rows, min_size=settings.min_jump_m / inp.ds,
+                          stretch=float(engine.stretch))
+    jrow = lag + np.arange(rows.n_rows)                       # oriented reference position
+    jpos = jrow if orient > 0 else (m - 1) - jrow
+    srow = rows.sample_row
+    s = inp.s0 + jpos[srow] * inp.ds
+    track = pd.DataFrame({"md_m": inp.md, "s_m": s, "unit": column.unit_at(s),
+                          "confidence": np.full(inp.md.size, np.nan)})
+    cuts = []
+    for c in found:
+        sample = int(np.clip(np.searchsorted(srow, c.row, "left"), 1, inp.md.size - 1))
+        first = int(np.clip(np.searchsorted(srow, c.first_row, "left"), 1, inp.md.size - 1))
+        last = int(np.clip(np.searchsorted(srow, c.last_row + 1, "left"), sample,
+                           inp.md.size - 1))
+        cuts.append(_measured(
+            well, column, trajectory, bed_dip, assumptions, picks, inp, sample=sample,
+            first=first, last=last, delta_s_m=orient * c.size * inp.ds,
+            j_before=float(jpos[srow[sample - 1]]), j_after=float(jpos[srow[sample]]),
+            confidence=math.nan, method="dtw", note="monotone DTW baseline"))
+    return CurveResult(cuts, track, res, inp.names)
+
+
+_LAG_WINDOW_M = 20.0   # lag-screen window [m of strat]: long enough to beat chance matches
+
+
+def find_cuts_lag_screen(
+    well,
+    column: ReferenceColumn,
+    trajectory,
+    *,
+    bed_dip: BedDip | None = None,
+    settings: CurveSettings = CurveSettings(),
+    assumptions: FaultAssumptions = FaultAssumptions(),
+    picks=None,
+    **screen,
+) -> CurveResult:
+    """The cheap screen: steps of the tracked windowed cross-correlation lag
+    (:func:`wellfault.align.lag_changepoints`; ``screen`` holds its keyword arguments; the
+    window is 20 m of strat unless given).
+
+    Cuts of at least ``settings.min_jump_m`` are measured like the engine's, placed at the
+    change point and bracketed by the windows around it; confidence is the smaller of the
+    tracked correlations either side. The windowed correlation is gain/offset free, so no
+    calibration is needed. ``alignment`` holds the :class:`~wellfault.align.LagTrack`.
+    """
+    from .align import lag_changepoints
+
+    bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
+    inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
+    opts = dict(min_step=settings.min_jump_m / inp.ds,
+                window=max(8, int(round(_LAG_WINDOW_M / inp.ds))))
+    opts.update(screen)
+    tr = lag_changepoints(inp.x, inp.ref, inp.step, weights=inp.weights, **opts)
+    n = inp.md.size
+    pred = np.cumsum(inp.step) - 0.5 * inp.step            # lagcp's predicted positions
+    if tr.sample.size:
+        lag = np.interp(np.arange(n), tr.sample, tr.lag_filtered)
+    else:
+        lag = np.full(n, np.nan)
+    s = inp.s0 + (pred + lag) * inp.ds
+    track = pd.DataFrame({"md_m": inp.md, "s_m": s, "unit": column.unit_at(s),
+                          "confidence": np.full(n, np.nan)})
+    cuts = []
+    nw = tr.sample.size
+    for c in tr.cuts:
+        if abs(c.size) * inp.ds < settings.min_jump_m:
+            continue
+        b = int(c.window)
+        first = int(np.clip(tr.sample[max(b - 2, 0)], 1, n - 1))
+        last = int(np.clip(tr.sample[min(b + 1, nw - 1)], 1, n - 1))
+        sample = int(np.clip(c.sample, first, last))
+        corr = tr.correlation[max(b - 2, 0):min(b + 2, nw)]
+        conf = float(np.nanmin(corr)) if np.isfinite(corr).any() else math.nan
+        cuts.append(_measured(
+            well, column, trajectory, bed_dip, assumptions, picks, inp, sample=sample,
+            first=first, last=last, delta_s_m=float(c.size) * inp.ds,
+            j_before=float(pred[sample - 1] + c.lag_before),
+            j_after=float(pred[sample] + c.lag_after), confidence=max(conf, 0.0),
+            method="lag screen", note="lag change-point screen"))
+    return CurveResult(cuts, track, tr, inp.names)
 
 
 def _same_sense(a: FaultCut, b: FaultCut) -> bool:

@@ -20,7 +20,8 @@ from .dip import BedDip
 from .forward import Beds, PlanarFault, SyntheticWell, simulate_well
 from .trajectory import Trajectory
 
-__all__ = ["Scenario", "random_scenario", "build_trajectory", "TRAJECTORY_KINDS"]
+__all__ = ["Scenario", "random_scenario", "curve_scenario", "build_trajectory",
+           "TRAJECTORY_KINDS", "REAL_GR_LOGS", "RealLog", "real_gr_column", "curve_spread"]
 
 TRAJECTORY_KINDS = ("vertical", "deviated", "high-angle")
 
@@ -52,6 +53,15 @@ class Scenario:
     @property
     def trajectory(self) -> Trajectory:
         return self.synthetic.trajectory
+
+    def fault_planes(self) -> tuple:
+        """The model's faults as mapped planes (:class:`wellfault.measure.FaultPlane`; TVDSS =
+        TVD here, the scenarios' trajectories having no elevation), so that a detector can be
+        given each cut's true fault attitude."""
+        from .measure import FaultPlane
+
+        return tuple(FaultPlane(f"F{k + 1}", f.dip_deg, f.dip_azimuth_deg, *map(float, f.point))
+                     for k, f in enumerate(self.faults))
 
 
 def build_trajectory(kind: str, *, inclination_deg: float, azimuth_deg: float,
@@ -104,11 +114,36 @@ def random_scenario(
     md_step_m: float = 0.1524,
     max_logged_m: float = 1500.0,
     curves: tuple[str, ...] = ("GR",),
+    inside_margin_m: float | None = None,
+    fault_clearance_m: float = 40.0,
+    fault_gap_m: tuple[float, float] | None = None,
+    min_faults: int = 0,
 ) -> Scenario:
     """Draw one random well through a faulted model (see the module docstring).
 
     The same ``seed`` and ``column`` always give the same scenario.
+
+    With ``inside_margin_m`` the well stays inside the column: the logged interval is trimmed
+    so that the true reference position of every sample, after faulting and thickness change,
+    lies at least that far inside the column's top and base (a type log says nothing about rock
+    above or below it, and the forward model would only hold its end value there), and the
+    faults are redrawn (up to 30 times, then fewer faults) until each crossing lies at least
+    ``fault_clearance_m`` of MD inside the trimmed interval. Without it (default) the well is
+    logged from where it enters the column, faults may carry it out, and the draw is the
+    original one (the tops accuracy test depends on it). ``fault_gap_m`` (with
+    ``inside_margin_m``) places the second of two faults that many metres of MD below the first
+    (closely spaced cuts); by default two faults are at least a quarter of the interval apart.
+    ``min_faults`` (with ``inside_margin_m``) raises the least number of faults drawn.
     """
+    if inside_margin_m is not None:
+        return _inside_scenario(
+            seed, column, kinds=kinds, max_faults=max_faults, max_dip_deg=max_dip_deg,
+            throw_range_m=throw_range_m, thickness_variation=thickness_variation,
+            noise_std=noise_std, gain_range=gain_range, offset_range=offset_range,
+            pick_noise_m=pick_noise_m, unpicked_fraction=unpicked_fraction,
+            md_step_m=md_step_m, max_logged_m=max_logged_m, curves=curves,
+            margin_m=float(inside_margin_m), clearance_m=float(fault_clearance_m),
+            fault_gap_m=fault_gap_m, min_faults=min_faults)
     rng = np.random.default_rng(seed)
     kind = str(rng.choice(list(kinds)))
     dip = float(rng.uniform(0.0, max_dip_deg))
@@ -167,3 +202,228 @@ def random_scenario(
     return Scenario(seed=seed, kind=kind, synthetic=syn, column=column,
                     bed_dip=BedDip.constant(dip, dip_azi), faults=faults,
                     fault_kinds=fault_kinds)
+
+
+def _reference_s(md: np.ndarray, traj: Trajectory, beds: Beds, faults: list[PlanarFault],
+                 column: ReferenceColumn, factors: np.ndarray
+                 ) -> tuple[np.ndarray, np.ndarray]:
+    """True reference-column position of the well at ``md`` (faults undone, thickness mapped,
+    as :func:`~wellfault.forward.simulate_well` computes it), and the samples after which the
+    set of hanging walls changes (fault crossings)."""
+    from .forward import _restore, _ThicknessMap
+
+    q, mem = _restore(np.asarray(traj.position(md), dtype=float), tuple(faults))
+    s = _ThicknessMap(column, factors).to_reference(q @ beds.normal + beds.origin_s_m)
+    return s, np.flatnonzero(np.any(mem[1:] != mem[:-1], axis=1))
+
+
+def _longest_run(mask: np.ndarray) -> tuple[int, int] | None:
+    idx = np.flatnonzero(mask)
+    if idx.size == 0:
+        return None
+    breaks = np.flatnonzero(np.diff(idx) > 1)
+    starts = np.r_[idx[0], idx[breaks + 1]]
+    ends = np.r_[idx[breaks], idx[-1]]
+    k = int(np.argmax(ends - starts))
+    return int(starts[k]), int(ends[k])
+
+
+def _draw_faults(rng, traj, md_top, md_base, n_faults, throw_range_m, gap_m=None):
+    span = md_base - md_top
+    slots = np.sort(rng.uniform(0.2, 0.8, size=n_faults))
+    if n_faults == 2 and gap_m is not None:
+        slots[0] = rng.uniform(0.2, 0.6)
+        slots[1] = slots[0] + rng.uniform(*gap_m) / span
+    elif n_faults == 2 and slots[1] - slots[0] < 0.25:
+        slots = np.array([0.3, 0.7])
+    faults, kinds = [], []
+    for frac in slots:
+        fk = str(rng.choice(["normal", "reverse"]))
+        fdip = float(rng.uniform(50.0, 70.0) if fk == "normal" else rng.uniform(25.0, 40.0))
+        fazi = float(rng.uniform(0.0, 360.0))
+        throw = float(rng.uniform(*throw_range_m))
+        point = traj.position(np.array([md_top + frac * span]))[0]
+        faults.append(PlanarFault.dip_slip(fdip, fazi, point, throw, kind=fk))
+        kinds.append(fk)
+    return faults, kinds
+
+
+def _inside_scenario(seed, column, *, kinds, max_faults, max_dip_deg, throw_range_m,
+                     thickness_variation, noise_std, gain_range, offset_range, pick_noise_m,
+                     unpicked_fraction, md_step_m, max_logged_m, curves, margin_m, clearance_m,
+                     fault_gap_m=None, min_faults=0) -> Scenario:
+    """:func:`random_scenario` with the well kept inside the column (its docstring)."""
+    rng = np.random.default_rng(seed)
+    kind = str(rng.choice(list(kinds)))
+    base_s = float(column.base_s_m)
+    if not np.isfinite(base_s):
+        raise ValueError("inside_margin_m needs a column with a defined base")
+    top_s = float(column.s_m[0])
+    lo_s, hi_s = top_s + margin_m, base_s - margin_m
+    for _attempt in range(50):
+        dip = float(rng.uniform(0.0, max_dip_deg))
+        dip_azi = float(rng.uniform(0.0, 360.0))
+        if kind == "vertical":
+            inc, azi = 0.0, 0.0
+        elif kind == "deviated":
+            inc, azi = float(rng.uniform(20.0, 55.0)), float(rng.uniform(0.0, 360.0))
+        else:
+            inc, azi = float(rng.uniform(65.0, 85.0)), float(rng.uniform(0.0, 360.0))
+        traj = build_trajectory(kind, inclination_deg=inc, azimuth_deg=azi, td_m=9000.0,
+                                name=f"S{seed:04d}")
+        top_tvd = float(rng.uniform(450.0, 700.0))
+        beds = Beds.through(dip, dip_azi, (0.0, 0.0, top_tvd), 0.0)
+        md = np.arange(0.0, 9000.0, 1.0)
+        s = beds.s(traj.position(md))
+        run = _longest_run((s > lo_s) & (s < hi_s))
+        if run is None or md[run[1]] - md[run[0]] < 150.0:
+            continue
+        # start somewhere in the first part of the crossing, so wells do not all begin at the top
+        md_top = float(md[run[0]])
+        md_end = float(md[run[1]])
+        room = md_end - md_top - min(max_logged_m, md_end - md_top)
+        md_top += float(rng.uniform(0.0, max(room, 0.0)))
+        md_base = min(md_end, md_top + max_logged_m)
+        break
+    else:  # pragma: no cover
+        raise RuntimeError(f"scenario {seed}: no trajectory crosses the column")
+    factors = rng.uniform(1.0 - thickness_variation, 1.0 + thickness_variation, size=len(column))
+    n_faults = int(rng.integers(min(min_faults, max_faults), max_faults + 1))
+    grid = np.arange(md_top, md_base, 0.5)
+    faults, fault_kinds = [], []
+    for _attempt in range(31 * max(n_faults, 1)):
+        nf = n_faults if _attempt < 30 else max(n_faults - 1 - (_attempt - 30) // 30, 0)
+        faults, fault_kinds = _draw_faults(rng, traj, md_top, md_base, nf, throw_range_m,
+                                           fault_gap_m)
+        s_ref, crossed = _reference_s(grid, traj, beds, faults, column, factors)
+        run = _longest_run((s_ref > lo_s) & (s_ref < hi_s))
+        if run is None or grid[run[1]] - grid[run[0]] < 0.5 * (md_base - md_top):
+            continue
+        a, b = float(grid[run[0]]), float(grid[run[1]])
+        if all(a + clearance_m <= grid[i] <= b - clearance_m for i in crossed):
+            md_top, md_base = a, b
+            break
+    else:
+        faults, fault_kinds = [], []
+    names = list(column.names)
+    unpicked = [n for n in names if rng.random() < unpicked_fraction]
+    gain = float(rng.uniform(*gain_range))
+    offset = float(rng.uniform(*offset_range))
+    syn = simulate_well(
+        column, beds, faults, traj, md_top_m=md_top, md_base_m=md_base, md_step_m=md_step_m,
+        curves=curves, thickness_factors=factors, noise_std=noise_std, gain=gain,
+        offset=offset, unpicked=unpicked, pick_noise_m=pick_noise_m, seed=seed,
+        name=f"S{seed:04d}",
+    )
+    return Scenario(seed=seed, kind=kind, synthetic=syn, column=column,
+                    bed_dip=BedDip.constant(dip, dip_azi), faults=faults,
+                    fault_kinds=fault_kinds)
+
+
+# ----------------------------------------------------------------- type logs from real curves
+@dataclass(frozen=True)
+class RealLog:
+    """A real open log used as a type log for benchmarks: file, the MD interval kept [m] and
+    why (see ../shared/reference_data/README.md for the files' provenance)."""
+
+    file: str
+    interval_m: tuple[float, float]
+    reason: str
+
+
+#: The real gamma-ray logs of ../shared/reference_data and the interval of each that makes a
+#: sensible type log. Excluded: stretches that are not formation signal (logged through casing,
+#: nulls, a tool held on one value) and long featureless ones, where no log correlation can
+#: place a cut (documented in DEVELOPERS.md, "Curve evidence on real type logs").
+REAL_GR_LOGS: dict[str, RealLog] = {
+    # Windsor-Kennetcook sub-basin, Nova Scotia (welly 0.5.2 sdist, tests/assets/P-129_out.LAS)
+    "P-129": RealLog("P-129_Kennetcook2.las", (290.0, 1900.0),
+                     "GR above 280 m logged through casing (and held flat 211-253 m); "
+                     "held flat over the last 30 m (1908-1939 m)"),
+    # Dutch North Sea block F3 (welly 0.5.2 sdist, tests/assets/F03-02.las); bottom-up file
+    "F03-02": RealLog("F03-02_NorthSea.las", (400.0, 1650.0),
+                      "nulls at 9.9-15 m and below 2140 m; 15-400 m a quiet trend "
+                      "(10-90 % range under 18 API); 1650-1880 m near-constant low GR "
+                      "(about 8 API) without character"),
+    # Sumner County, Kansas (welly 0.5.2 sdist, tutorial/data/Wellington_KGS-1-32...); feet
+    "Wellington": RealLog("Wellington_KGS_1-32.las", (180.0, 1575.0),
+                          "nulls below 1580.7 m and a basement spike at the very base"),
+}
+
+
+def real_gr_column(name: str, folder, *, surfaces_every_m: float = 50.0,
+                   max_gap_m: float = 2.0) -> ReferenceColumn:
+    """Reference column whose type log is the gamma ray of one of :data:`REAL_GR_LOGS`.
+
+    The log is read with :func:`wellfault.io.read_las` (metres, top down), cut to the entry's
+    interval, put on a regular grid of its median step (F03-02's step is irregular) by linear
+    interpolation between valid samples, and handed to
+    :func:`~wellfault.forward.column_from_real_curve` (invented surfaces every
+    ``surfaces_every_m``, snapped to log breaks). A null gap longer than ``max_gap_m`` inside
+    the interval is an error (it would be filled by a straight line).
+    """
+    from pathlib import Path
+
+    from .forward import column_from_real_curve
+    from .io import read_las
+
+    if name not in REAL_GR_LOGS:
+        raise KeyError(f"unknown real log {name!r}; choose from {sorted(REAL_GR_LOGS)}")
+    entry = REAL_GR_LOGS[name]
+    well = read_las(Path(folder) / entry.file)
+    md = well.curves.index.to_numpy(float)
+    gr = well.curves["GR"].to_numpy(float)
+    a, b = entry.interval_m
+    sel = (md >= a) & (md <= b)
+    md, gr = md[sel], gr[sel]
+    ok = np.isfinite(gr)
+    gaps = np.diff(md[ok])
+    if gaps.size and gaps.max() > max_gap_m:
+        raise ValueError(f"{entry.file}: null gap of {gaps.max():.1f} m inside {entry.interval_m}")
+    ds = float(np.median(np.diff(md)))
+    grid = np.arange(md[ok][0], md[ok][-1] + 1e-9, ds)
+    values = np.interp(grid, md[ok], gr[ok])
+    return column_from_real_curve(values, ds, surfaces_every_m=surfaces_every_m,
+                                  name_prefix=name.split("-")[0][:3].upper() + "-",
+                                  name=f"type log: {name} GR {a:.0f}-{b:.0f} m")
+
+
+def curve_spread(column: ReferenceColumn, curve: str = "GR") -> float:
+    """Robust spread of a type-log curve: (q90 − q10) / 2.5631, the standard deviation for
+    normal data (:func:`wellfault.align.robust_location_scale`)."""
+    from .align import robust_location_scale
+
+    return float(robust_location_scale(column.type_log[curve].to_numpy(float))[1][0])
+
+
+def curve_scenario(
+    seed: int,
+    column: ReferenceColumn,
+    *,
+    curve: str = "GR",
+    noise_rel: tuple[float, float] = (0.10, 0.20),
+    offset_rel: float = 0.35,
+    gain_range: tuple[float, float] = (0.8, 1.25),
+    thickness_variation: float = 0.15,
+    max_logged_m: float = 1000.0,
+    inside_margin_m: float = 10.0,
+    **kwargs,
+) -> Scenario:
+    """A well for the curve-evidence accuracy goals (the issue "Fault cuts from log curves").
+
+    :func:`random_scenario` kept inside the column (``inside_margin_m``), with measurement
+    noise and tool offset scaled to the type log's robust spread (:func:`curve_spread`):
+    noise standard deviation drawn per well in ``noise_rel`` × spread, offset in
+    ±``offset_rel`` × spread, gain in ``gain_range``; thickness of every unit changed by up to
+    ±``thickness_variation``; vertical, deviated and high-angle wells; 0–2 normal or reverse
+    faults. Noise set in API units would be far larger, relative to the signal, on a quiet log
+    than on a lively one.
+    """
+    spread = curve_spread(column, curve)
+    rng = np.random.default_rng([int(seed), 7])        # apart from the scenario's own draws
+    noise = float(rng.uniform(*noise_rel)) * spread
+    return random_scenario(
+        seed, column, curves=(curve,), noise_std=noise, gain_range=gain_range,
+        offset_range=(-offset_rel * spread, offset_rel * spread),
+        thickness_variation=thickness_variation, max_logged_m=max_logged_m,
+        inside_margin_m=inside_margin_m, **kwargs)

@@ -8,12 +8,21 @@ predicted strat increment of every well sample):
 * :class:`Alignment`, :class:`Jump` — results.
 * :func:`standardise`, :func:`robust_location_scale` — robust curve standardisation.
 * :func:`resample_strat` — the well on rows one reference sample apart in predicted strat.
-* :func:`dtw_baseline` — plain monotone DTW, the accuracy baseline.
+* :func:`dtw_baseline`, :func:`dtw_subsequence`, :func:`dtw_cuts` — plain monotone DTW, the
+  accuracy baseline (both ends anchored, or open-ended with cuts read from its path).
 * :func:`lag_changepoints` — cheap screen: change points of the windowed cross-correlation lag.
 """
 
-from .dtw import dtw_baseline
-from .engine import Alignment, AlignmentEngine, Jump, StreamingAligner, stretch_moves
+from .dtw import DTWCut, dtw_baseline, dtw_cuts, dtw_subsequence
+from .engine import (
+    CONFIDENCE_COEF,
+    Alignment,
+    AlignmentEngine,
+    Jump,
+    StreamingAligner,
+    running_standardise,
+    stretch_moves,
+)
 from .lagcp import LagCut, LagTrack, lag_changepoints
 from .misfit import MISFITS, misfit_matrix, robust_location_scale, standardise
 from .resample import StratRows, resample_strat
@@ -31,6 +40,11 @@ __all__ = [
     "resample_strat",
     "StratRows",
     "dtw_baseline",
+    "dtw_subsequence",
+    "dtw_cuts",
+    "DTWCut",
+    "running_standardise",
+    "CONFIDENCE_COEF",
     "lag_changepoints",
     "LagTrack",
     "LagCut",

@@ -59,13 +59,15 @@ def _first_index(a, off, m, value):
 @njit(cache=True)
 def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w, kind, delta,
                  null_misfit, Rr, sig, run, bf, bs, jump_pen, strain_pen, Fring, Ering, rowmin,
-                 rowarg, rowmean, codes, code_row0):
+                 rowarg, rowmean, codes, code_row0, off_lo, off_hi, off_cost):
     """Run the DP over rows r0..r1-1, writing codes into ``codes[r - code_row0]``.
 
     Row ``r_first`` starts the paths: at every column (``start_col < 0``) or at ``start_col``
     only. Only columns c0..c1-1 are computed (the others stay +inf); ``jump_pen = inf``
     disables jumps. The engine runs it with (0, -1, 0, M); the cut evidence runs it on a
-    window of rows with a fixed or free start, without jumps.
+    window of rows with a fixed or free start, without jumps. Columns before ``off_lo`` and
+    from ``off_hi`` on are off the type log (engine.py, "Off the type log"): their misfit is
+    the constant ``off_cost``; ``rowmean`` is the mean over the columns on the log.
 
     Per row: the misfit pass, one pass per intermediate row of the FAST/SLOW moves, then one
     fused branch-free pass over the candidates (a disabled move reads an all-inf row), so the
@@ -85,7 +87,14 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
         cr = codes[r - code_row0, c0:c1]
         misfit_cols(xr[r], lo_t, hi_t, ref_nan, w, kind, delta, null_misfit, Er[pad:pad + m],
                     c0, c1)
-        rowmean[r] = _row_sum(Er, pad + c0, n) / n
+        a0, a1 = max(c0, off_lo), min(c1, off_hi)
+        rowmean[r] = _row_sum(Er, pad + a0, a1 - a0) / (a1 - a0) if a1 > a0 else off_cost
+        if a0 > c0 or a1 < c1:
+            eo = Er[pad:pad + m]
+            for j in range(c0, min(c1, off_lo)):
+                eo[j] = off_cost
+            for j in range(max(c0, off_hi), c1):
+                eo[j] = off_cost
         fr = Fr[pad + c0:pad + c1]
         er = Er[pad + c0:pad + c1]
         if r == r_first:

@@ -54,7 +54,8 @@ def _sample_misfit(z, pos, ref_t, w, kind, delta, null_misfit) -> np.ndarray:
 
 
 def _path_misfit(x, path, p, kind, delta, null_misfit) -> np.ndarray:
-    """Misfit of each row at its path column (same definition as misfit.misfit_cols)."""
+    """Misfit of each row at its path column (same definition as misfit.misfit_cols; off-log
+    columns cost ``off_cost``)."""
     lo, hi = p["lo_t"][:, path].T, p["hi_t"][:, path].T            # (R, C)
     d = np.maximum(np.maximum(lo - x, x - hi), 0.0)
     q = np.minimum(d, delta)
@@ -65,6 +66,8 @@ def _path_misfit(x, path, p, kind, delta, null_misfit) -> np.ndarray:
     out = np.full(x.shape[0], float(null_misfit))
     good = wsum > 0
     out[good] = (np.where(ok, rho, 0.0) * ww).sum(axis=1)[good] / wsum[good]
+    off = (path < p["off"]) | (path >= p["off"] + p["m_ref"])
+    out[off] = p["off_cost"]
     return out
 
 
@@ -91,12 +94,30 @@ def _correlation(z: np.ndarray, pos: np.ndarray, ref_t: np.ndarray, w: np.ndarra
     return num / den if den > 0 else math.nan
 
 
-def _confidence(margin: float, corr: float, e) -> float:
-    """logistic(margin / confidence_scale) × ramp of the correlation from floor to full."""
-    x = max(min(margin / float(e.confidence_scale), 700.0), -700.0) if margin == margin else 0
+def confidence_features(margin: float, corr: float, run: float) -> np.ndarray:
+    """Features of the calibrated confidence (engine.py, "Cut evidence"): 1,
+    ln(1 + max(margin, 0)), correlation (NaN → 0), ln(max(run, 1))."""
+    m = max(float(margin), 0.0) if margin == margin else 0.0
+    c = float(corr) if corr == corr else 0.0
+    return np.array([1.0, math.log1p(m), c, math.log(max(float(run), 1.0))])
+
+
+def _confidence(margin: float, corr: float, e, run: float = math.inf) -> float:
+    """The cut's confidence (engine.py, "Cut evidence")."""
+    if not margin == margin:
+        return math.nan
+    coef = getattr(e, "confidence_coef", None)
+    if coef is not None:
+        x = float(np.dot(np.asarray(coef, dtype=float), confidence_features(margin, corr, run)))
+        return 1.0 / (1.0 + math.exp(-max(min(x, 700.0), -700.0)))
+    x = max(min((margin - float(e.confidence_offset)) / float(e.confidence_scale), 700.0),
+            -700.0)
     lo, hi = float(e.correlation_floor), float(e.correlation_full)
     ramp = 0.0 if not corr == corr else min(max((corr - lo) / (hi - lo), 0.0), 1.0)
-    return ramp / (1.0 + math.exp(-x)) if margin == margin else math.nan
+    return ramp / (1.0 + math.exp(-x))
+
+
+_PLACE_ROWS = 4   # rows either side of a jump's landing row searched for the cut's sample
 
 
 def _landing_at_or_after(landing: np.ndarray, lo: int, hi: int) -> int:
@@ -137,7 +158,8 @@ def _window_dp(al, rows: np.ndarray, Rr: np.ndarray, sig: np.ndarray, start_col:
     K.forward_rows(0, n, 0, -1 if free else start_col, c0, c1, rows, p["lo_t"], p["hi_t"],
                    p["ref_nan"], p["w"], p["kind"], float(e.huber_delta), float(e.null_misfit),
                    Rr, sig, run, p["bf"], p["bs"], math.inf, float(e.strain_penalty), F, E,
-                   rowmin, rowarg, rowmean, codes, 0)
+                   rowmin, rowarg, rowmean, codes, 0, p["off"], p["off"] + p["m_ref"],
+                   p["off_cost"])
     return rowmin
 
 
@@ -229,16 +251,18 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
             margin, lo, hi = _jump_evidence(al, r, a, zz, path, free_start=(q == 0 and a == 0))
         else:
             margin, lo, hi = math.nan, r, r
-        # place the cut on the well's own samples: split the samples of rows r-1 and r
-        i0 = int(np.searchsorted(srow, r - 1, "left"))
-        i1 = int(np.searchsorted(srow, r, "right"))
+        # place the cut on the well's own samples: split the samples of rows r-K..r+K-1
+        # (not crossing the neighbouring jumps) where the misfit with the lag before / after
+        # is least — the DP may land a jump a row or two off where the type log is plain
+        i0 = int(np.searchsorted(srow, max(r - _PLACE_ROWS, prev_r), "left"))
+        i1 = int(np.searchsorted(srow, min(r + _PLACE_ROWS - 1, next_r - 1), "right"))
         s_row = int(np.searchsorted(srow, r, "left"))
         cut = s_row
         if i1 - i0 >= 2:
             idx = np.arange(i0, i1)
-            pre = _sample_misfit(z[idx], spos[idx] + lag_row[r - 1], p["ref_t"], p["w"],
+            pre = _sample_misfit(z[idx], spos[idx] + lag_row[r - 1], p["dp_t"], p["w"],
                                  kind, delta, nm)
-            post = _sample_misfit(z[idx], spos[idx] + lag_row[r], p["ref_t"], p["w"],
+            post = _sample_misfit(z[idx], spos[idx] + lag_row[r], p["dp_t"], p["w"],
                                   kind, delta, nm)
             cpre = np.concatenate([[0.0], np.cumsum(pre)])
             cpost = np.concatenate([np.cumsum(post[::-1])[::-1], [0.0]])
@@ -253,19 +277,23 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
         b_hi = int(np.searchsorted(srow, hi, "left"))
         bracket = (min(b_lo, cut), min(max(b_hi, cut), n - 1))
         size = _fitted_size(lag_row, r, prev_r, next_r, W)
-        found.append((cut, r, size, float(margin), bracket, a, zz))
+        found.append((cut, r, size, float(margin), bracket, a, zz, r - prev_r, next_r - r))
 
     # correlation with the type log on either side, once every cut has been placed
+    off, m_ref = p["off"], p["m_ref"]
+    on_log = (pos >= off - 0.5) & (pos <= off + m_ref - 0.5)     # within the type log's ends
     jumps = []
-    for cut, r, size, margin, bracket, a, zz in found:
+    for cut, r, size, margin, bracket, a, zz, run_above, run_below in found:
         above = slice(int(np.searchsorted(srow, a, "left")), cut)
         below = slice(cut, int(np.searchsorted(srow, zz, "right")))
-        corr = min(_correlation(z[above], pos[above], p["ref_t"], p["w"]),
-                   _correlation(z[below], pos[below], p["ref_t"], p["w"]))
-        conf = _confidence(margin, corr, e)
-        jumps.append(Jump(sample=cut, row=r, j_before=float(pos[cut - 1]) if cut > 0 else
-                          float("nan"), j_after=float(pos[cut]), size=size, margin=margin,
-                          correlation=corr, confidence=conf, bracket=bracket))
+        corr = min(_correlation(z[above], pos[above], p["dp_t"], p["w"]),
+                   _correlation(z[below], pos[below], p["dp_t"], p["w"]))
+        conf = _confidence(margin, corr, e, min(run_above, run_below))
+        jumps.append(Jump(sample=cut, row=r, j_before=float(pos[cut - 1]) - off if cut > 0
+                          else float("nan"), j_after=float(pos[cut]) - off, size=size,
+                          margin=margin, correlation=corr, confidence=conf, bracket=bracket,
+                          off_log=bool(not on_log[cut] or (cut > 0 and not on_log[cut - 1])),
+                          rows_above=int(run_above), rows_below=int(run_below)))
 
     # local fit quality per row, smoothed, then per sample
     epath = _path_misfit(al._rows.a[:nrows], path, p, kind, delta, nm)
@@ -279,6 +307,7 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
         num = np.convolve(qual, ker, "same")
         den = np.convolve(np.ones(nrows), ker, "same")
         qual = num / den
-    return Alignment(path=pos, score=score, jumps=tuple(jumps), confidence=qual[srow],
-                     correlation=_correlation(z, pos, p["ref_t"], p["w"]), row_path=path,
-                     sample_row=srow, center=al.center.copy(), scale=al.scale.copy())
+    return Alignment(path=pos - off, score=score, jumps=tuple(jumps), confidence=qual[srow],
+                     correlation=_correlation(z, pos, p["dp_t"], p["w"]), row_path=path - off,
+                     sample_row=srow, center=al.center.copy(), scale=al.scale.copy(),
+                     on_log=on_log)

@@ -67,7 +67,7 @@ class StreamingAligner:
             np.asarray(scale, float), (nc,)).copy()
         if np.any(~(self.scale > 0)):
             raise input_error("scale must be positive", value=self.scale.tolist())
-        m = p["ref_t"].shape[1]
+        m = p["lo_t"].shape[1]                # DP columns: the type log and its off-log margins
         width = m + 2 * p["pad"]
         self._F = np.full((p["nb"], width), np.inf)
         self._E = np.full((p["nb"], width), np.inf)
@@ -134,12 +134,12 @@ class StreamingAligner:
             if codes_out is None:
                 b = r // self._block_rows
                 while len(self._blocks) <= b:
-                    self._blocks.append(np.empty((self._block_rows, p["ref_t"].shape[1]),
+                    self._blocks.append(np.empty((self._block_rows, p["lo_t"].shape[1]),
                                                  np.uint8))
                 blk, row0 = self._blocks[b], b * self._block_rows
                 rend = min(r1, row0 + self._block_rows)
             else:
-                blk = np.empty((r1 - r, p["ref_t"].shape[1]), np.uint8)
+                blk = np.empty((r1 - r, p["lo_t"].shape[1]), np.uint8)
                 row0, rend = r, r1
                 codes_out.append((row0, blk))
             K.forward_rows(r, rend, 0, -1, 0, p["lo_t"].shape[1], self._rows.a, p["lo_t"],
@@ -147,7 +147,8 @@ class StreamingAligner:
                            float(e.huber_delta), float(e.null_misfit), self._Rr.a, self._sig.a,
                            self._run.a, p["bf"], p["bs"], float(e.jump_penalty),
                            float(e.strain_penalty), self._F, self._E, self._rowmin.a,
-                           self._rowarg.a, self._rowmean.a, blk, row0)
+                           self._rowarg.a, self._rowmean.a, blk, row0, p["off"],
+                           p["off"] + p["m_ref"], p["off_cost"])
             r = rend
 
     # -- result -------------------------------------------------------------------------------

@@ -1,0 +1,79 @@
+"""Shared case lists for bench_curves.py and calibrate_confidence.py (not a module users need).
+
+A *case* is (label, source log, type-log column, seed, scenario keywords): the well is drawn by
+:func:`wellfault.scenarios.curve_scenario` from the source log's column and aligned against the
+type-log column (the same one, except for the "unrelated" cases, where it is another log's:
+every cut found there is false).
+"""
+
+from __future__ import annotations
+
+import os
+import time
+from functools import lru_cache
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+REAL = ("P-129", "F03-02", "Wellington")
+INVENTED = "invented"
+
+
+def reference_data() -> Path:
+    env = os.environ.get("WELLFAULT_REFERENCE_DATA")
+    return Path(env) if env else Path(__file__).resolve().parents[2] / "shared" / "reference_data"
+
+
+@lru_cache(maxsize=None)
+def column(name: str):
+    from wellfault.forward import synthetic_column
+    from wellfault.scenarios import real_gr_column
+
+    if name == INVENTED:   # an invented column of about the same length, for contrast
+        return synthetic_column(24, seed=5, curves=("GR",), name="invented column")
+    return real_gr_column(name, reference_data())
+
+
+def run_case(case, methods=("engine",), settings=None):
+    """Run the named methods on one case; returns {method: (rows, detected, seconds)}."""
+    from wellfault.curvecuts import (CurveSettings, find_cuts_dtw_baseline,
+                                     find_cuts_from_curves, find_cuts_lag_screen)
+    from wellfault.evaluation import score_scenario
+    from wellfault.scenarios import curve_scenario
+
+    label, src, dst, seed, kw = case
+    sc = curve_scenario(seed, column(src), **kw)
+    col = column(dst)
+    settings = settings or CurveSettings()
+    fns = {"engine": find_cuts_from_curves, "dtw": find_cuts_dtw_baseline,
+           "lag": find_cuts_lag_screen}
+    out = {}
+    for m in methods:
+        t0 = time.perf_counter()
+        res = fns[m](sc.well, col, sc.trajectory, bed_dip=sc.bed_dip, settings=settings)
+        dt = time.perf_counter() - t0
+        if src == dst:
+            rows, det = score_scenario(res.cuts, sc)
+        else:                              # unrelated type log: nothing can be right
+            rows = pd.DataFrame()
+            det = pd.DataFrame({
+                "md_m": [c.md_m for c in res.cuts], "delta_s_m": [c.delta_s_m for c in res.cuts],
+                "confidence": [c.confidence for c in res.cuts], "real": False,
+                "margin": [c.extra.get("margin", np.nan) for c in res.cuts],
+                "correlation": [c.extra.get("correlation", np.nan) for c in res.cuts]})
+        for t in (rows, det):
+            if len(t):
+                t["case"], t["log"], t["seed"], t["kind"] = label, src, seed, sc.kind
+        det["run"] = [min(c.extra.get("rows_above", np.nan), c.extra.get("rows_below", np.nan))
+                      for c in res.cuts]
+        out[m] = (rows, det, dt)
+    return out
+
+
+def cases(label: str, logs, seeds, dst=None, **kw):
+    return [(label, log, dst(log) if dst else log, int(s), kw) for log in logs for s in seeds]
+
+
+def unrelated(log: str) -> str:
+    return REAL[(REAL.index(log) + 1) % len(REAL)]
