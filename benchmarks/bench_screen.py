@@ -19,7 +19,9 @@ issue: 10,000 wells by tops in under 60 s on 2 cores, near-linear speed-up.
     python benchmarks/bench_screen.py                 # 2,000 and 10,000 wells
     python benchmarks/bench_screen.py --sizes 2000    # quicker
 
-Curves (500 wells by curves): pending engine wiring into screening.
+Curves: ``--curve-wells N`` (default 500) draws N wells with gamma-ray logs through a faulted
+model with the forward model (vertical and deviated, 1,200 m of log each) and screens them with
+curve evidence (each well aligned to the type log) on 1 and 2 worker processes.
 """
 
 from __future__ import annotations
@@ -186,10 +188,85 @@ def calibrate() -> tuple[float, float]:
     return one, two
 
 
+def make_curve_field(folder: Path, n: int, seed: int = 3) -> dict:
+    """N wells with GR logs, tops and surveys through a faulted model (forward model)."""
+    import numpy as np
+    import pandas as pd
+
+    from wellfault.forward import Beds, PlanarFault, simulate_well, synthetic_column
+    from wellfault.io import write_las, write_survey, write_tops
+    from wellfault.scenarios import build_trajectory
+
+    folder.mkdir(parents=True, exist_ok=True)
+    t0 = time.perf_counter()
+    column = synthetic_column(14, seed=seed, curves=("GR",), pad_m=60.0)
+    side = 300.0 * np.sqrt(n)
+    beds = Beds.through(2.0, 70.0, (0.0, 0.0, 1500.0), 0.0)
+    rng = np.random.default_rng(seed)
+    faults = [PlanarFault.dip_slip(60.0, 90.0, (x, side / 2, 1800.0),
+                                   float(rng.uniform(20, 60)), name=f"D{k + 1}")
+              for k, x in enumerate(np.arange(1500.0, side, 3000.0))]
+    rows, tops, true_cuts = [], [], 0
+    for i in range(n):
+        x, y = rng.uniform(0, side, 2)
+        deviated = rng.random() < 0.3
+        traj = build_trajectory("deviated" if deviated else "vertical",
+                                inclination_deg=float(rng.uniform(20, 45)),
+                                azimuth_deg=float(rng.uniform(0, 360)), kickoff_m=800.0,
+                                td_m=5000.0, name=f"C{i:04d}")
+        from wellfault.trajectory import Trajectory
+        st = traj.stations
+        traj = Trajectory(st.md_m, st.inc_deg, st.azi_deg, x0_m=x, y0_m=y, ref_elevation_m=0.0,
+                          name=f"C{i:04d}")
+        md_grid = np.arange(0.0, 5000.0, 2.0)
+        s = beds.s(traj.position(md_grid))
+        top = float(md_grid[np.searchsorted(s, -30.0)])
+        syn = simulate_well(column, beds, faults, traj, md_top_m=top, md_base_m=top + 1200.0,
+                            noise_std=4.0, thickness_factors=rng.uniform(0.92, 1.08,
+                                                                         len(column)),
+                            gain=float(rng.uniform(0.9, 1.1)), offset=float(rng.uniform(-8, 8)),
+                            seed=seed * 100000 + i, name=f"C{i:04d}")
+        las = folder / f"C{i:04d}.las"
+        write_las(syn.well, las)
+        survey = ""
+        if deviated:
+            write_survey(traj.stations[["md_m", "inc_deg", "azi_deg"]],
+                         folder / f"C{i:04d}_survey.csv")
+            survey = f"C{i:04d}_survey.csv"
+        tops.append(syn.tops)
+        true_cuts += len(syn.cuts)
+        rows.append({"well": f"C{i:04d}", "las": las.name, "survey": survey,
+                     "tops": "tops.csv", "dip": "2/070", "x_m": x, "y_m": y,
+                     "elevation_m": 0.0})
+    write_tops(pd.concat(tops, ignore_index=True), folder / "tops.csv")
+    pd.DataFrame(rows).to_csv(folder / "manifest.csv", index=False)
+    return {"folder": str(folder), "n": n, "true_cuts": true_cuts,
+            "generate_s": time.perf_counter() - t0, "column_seed": seed}
+
+
+def run_curves(field: dict, workers: int) -> dict:
+    from wellfault.forward import synthetic_column
+    from wellfault.screen import screen_wells
+
+    column = synthetic_column(14, seed=field["column_seed"], curves=("GR",), pad_m=60.0)
+    folder = Path(field["folder"])
+    t0 = time.perf_counter()
+    res = screen_wells(folder / "manifest.csv", column, type_well=column, curves=["GR"],
+                       workers=workers, progress=False, fit=False, neighbours=False)
+    dt = time.perf_counter() - t0
+    return {"workers": workers, "seconds": dt, "wells_per_s": field["n"] / dt,
+            "cuts": int(len(res.cuts)), "by_curves": int(res.cuts.method.isin(
+                ["curves", "both"]).sum()), "failed": int(res.n_failed),
+            "maxrss_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024}
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--sizes", type=int, nargs="+", default=[2000, 10000])
     ap.add_argument("--no-dask", action="store_true")
+    ap.add_argument("--curve-wells", type=int, default=500,
+                    help="wells in the curve-evidence field (0: skip)")
+    ap.add_argument("--curves-only", action="store_true", help="only the curve part")
     ap.add_argument("--one", action="store_true", help=argparse.SUPPRESS)
     ap.add_argument("--make", type=int, help=argparse.SUPPRESS)
     ap.add_argument("--folder", help=argparse.SUPPRESS)
@@ -210,7 +287,7 @@ def main() -> None:
     print(f"machine check: a fixed CPU task takes {one:.2f} s alone and {two:.2f} s as two "
           f"copies in two processes -> the 2 cores give {2 * one / two:.2f}x now "
           f"(load average {os.getloadavg()[0]:.1f})", flush=True)
-    for n in args.sizes:
+    for n in ([] if args.curves_only else args.sizes):
         # drawn in a child process: this process stays small, and the runs (its children,
         # which inherit its peak resident size on Linux) measure their own memory
         made = subprocess.run([sys.executable, __file__, "--make", str(n), "--folder",
@@ -260,7 +337,18 @@ def main() -> None:
           "its workers (sampled, psutil); main MB is the main process's peak RSS, worker MB the "
           "largest worker's peak RSS (sampled); load is the machine's 1-minute load average "
           "during the run (other work on the 2 cores slows the wall-clock figures).")
-    print("curves: pending engine wiring (500 wells by curves not measured)")
+    if args.curve_wells:
+        field = make_curve_field(root / "curves", args.curve_wells)
+        print(f"\ncurve field: {field['n']} wells with GR logs, {field['true_cuts']} true cuts; "
+              f"drawn and written in {field['generate_s']:.1f} s")
+        base = None
+        for workers in (1, 2):
+            r = run_curves(field, workers)
+            base = base or r["seconds"]
+            print(f"  curves x{workers}: {r['seconds']:6.1f} s, {r['wells_per_s']:.1f} wells/s, "
+                  f"speed-up {base / r['seconds']:.2f}, cuts {r['cuts']} ({r['by_curves']} by "
+                  f"curves), failed {r['failed']}, main peak RSS {r['maxrss_mb']:.0f} MB",
+                  flush=True)
 
 
 if __name__ == "__main__":
