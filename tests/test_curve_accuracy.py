@@ -53,7 +53,8 @@ def _run(refdata, seeds, *, dst=None):
                 t["log"], t["seed"], t["kind"] = log, seed, sc.kind
             all_rows.append(rows)
             all_det.append(det)
-    rows = pd.concat([r for r in all_rows if len(r)], ignore_index=True)
+    rows = pd.concat([r for r in all_rows if len(r)], ignore_index=True) if any(
+        len(r) for r in all_rows) else pd.DataFrame(columns=["true_delta_s_m", "found"])
     det = pd.concat([d for d in all_det if len(d)], ignore_index=True) if any(
         len(d) for d in all_det) else pd.DataFrame(columns=["real", "confidence"])
     return rows, det
@@ -92,22 +93,22 @@ def test_real_gamma_ray_type_logs_quick_recovery(refdata):
 
 @pytest.mark.slow
 def test_real_gamma_ray_type_logs_meet_the_issue_goals(refdata):
-    """48 wells (16 per real log), about a minute: the issue's goals as stated — recall >= 0.9
+    """60 wells (20 per real log), about 30 s: the issue's goals as stated — recall >= 0.9
     for |Δs| >= 5 m, depth error median <= 1 m and p90 <= 3 m, |Δs| error median within
     max(10 %, 1 m), <= 0.1 false cuts per well, section and fault type (attitude given, crossing
     not degenerate) right in >= 98 % of found cuts, and >= 90 % of the cuts reported with
     confidence >= 0.9 real. None is relaxed for the smaller sample; the confidence goal needs
     at least 20 such cuts to be read."""
-    rows, det = _run(refdata, range(510, 526))
-    s, ratio, real_hi, n_hi = _figures(rows, det, 48)
-    assert s.counted_cuts >= 40
+    rows, det = _run(refdata, range(510, 530))
+    s, ratio, real_hi, n_hi = _figures(rows, det, 60)
+    assert s.counted_cuts >= 45
     assert s.recall >= 0.9
     assert s.md_error_median_m <= 1.0
     assert s.md_error_p90_m <= 3.0
     assert ratio <= 1.0
     assert s.false_per_well <= 0.1
     assert s.section_right >= 0.98
-    assert s.fault_type_right >= 0.98 and s.fault_type_cases >= 30
+    assert s.fault_type_right >= 0.98 and s.fault_type_cases >= 40
     assert n_hi >= 20 and real_hi >= 0.9
     assert s.bracket_holds >= 0.95
 
@@ -119,8 +120,22 @@ def test_wells_against_an_unrelated_real_type_log_get_no_confident_cut(refdata):
     def other(log):
         return LOGS[(LOGS.index(log) + 1) % len(LOGS)]
 
-    _, det = _run(refdata, range(530, 531), dst=other)
+    _, det = _run(refdata, range(540, 541), dst=other)
     conf = det["confidence"].to_numpy(float)
     print(f"\n{len(conf)} cuts reported in 3 unrelated wells, confidences {np.round(conf, 2)}")
     assert np.all(conf < 0.9)
     assert np.mean(conf) < 0.4
+
+
+def test_curve_scenarios_stay_inside_the_type_log_and_keep_their_cuts_clear_of_the_ends(refdata):
+    """The benchmark wells never leave the real type log (10 m margin, after faults and
+    thickness change) and every true cut lies at least 40 m of MD from either end of the log."""
+    for log in LOGS:
+        col = _column(log, str(refdata))
+        for seed in range(600, 620):
+            sc = curve_scenario(seed, col)
+            s = sc.synthetic.s_m
+            assert s.min() >= 10.0 - 1e-6 and s.max() <= col.base_s_m - 10.0 + 1e-6
+            md = sc.well.curves.index.to_numpy()
+            for cut in sc.truth.itertuples():
+                assert md[0] + 40.0 - 0.5 <= cut.md_m <= md[-1] - 40.0 + 0.5

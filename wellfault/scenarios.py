@@ -278,7 +278,8 @@ def _inside_scenario(seed, column, *, kinds, max_faults, max_dip_deg, throw_rang
         run = _longest_run((s > lo_s) & (s < hi_s))
         if run is None or md[run[1]] - md[run[0]] < 150.0:
             continue
-        # start somewhere in the first part of the crossing, so wells do not all begin at the top
+        # start anywhere along the crossing that leaves room for the logged length, so that
+        # wells do not all begin at the column top
         md_top = float(md[run[0]])
         md_end = float(md[run[1]])
         room = md_end - md_top - min(max_logged_m, md_end - md_top)
@@ -303,8 +304,12 @@ def _inside_scenario(seed, column, *, kinds, max_faults, max_dip_deg, throw_rang
         if all(a + clearance_m <= grid[i] <= b - clearance_m for i in crossed):
             md_top, md_base = a, b
             break
-    else:
+    else:  # no fault draw fits: log the unfaulted well, trimmed to the column all the same
         faults, fault_kinds = [], []
+        s_ref, _ = _reference_s(grid, traj, beds, faults, column, factors)
+        run = _longest_run((s_ref > lo_s) & (s_ref < hi_s))
+        if run is not None and run[1] > run[0]:
+            md_top, md_base = float(grid[run[0]]), float(grid[run[1]])
     names = list(column.names)
     unpicked = [n for n in names if rng.random() < unpicked_fraction]
     gain = float(rng.uniform(*gain_range))

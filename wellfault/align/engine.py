@@ -76,9 +76,10 @@ flagged :attr:`Jump.off_log` — where the well leaves or re-enters the type log
 size unknown — and the well-level wiring (wellfault.curvecuts) never reports it as a cut. The
 constant must lie above the misfit of a true match (noise²/2 and a little more, about 0.01-0.05
 for noise of 10-20 % of the spread) and below what chance matches reach with a jump now and
-then; 0.06 does both on the benchmark wells: wells partly outside the column went from 0.44 to
-0.03 false cuts per well, wells inside lost nothing, and a well aligned to an unrelated type
-log now runs mostly off the log instead of hopping (about 1 cut per well instead of 20). A
+then; 0.06 does both on the benchmark wells (0.25 did not): wells partly outside the column
+went from 0.44 to 0.03 false cuts per well, wells inside lost nothing, and a well aligned to an
+unrelated type log now runs mostly off the log instead of hopping (about 2 reported cuts per
+well instead of 22, none confident). A
 path longer than the margins hops inside them (such jumps are off-log too). ``off_log = 0``
 (the default of this array-level class) keeps the exact behaviour of the plain DP.
 

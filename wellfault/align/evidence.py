@@ -281,7 +281,8 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
 
     # correlation with the type log on either side, once every cut has been placed
     off, m_ref = p["off"], p["m_ref"]
-    on_log = (pos >= off - 0.5) & (pos <= off + m_ref - 0.5)     # within the type log's ends
+    on_log = (pos >= off - 0.5) & (pos <= off + m_ref - 0.5) if off > 0 else \
+        np.ones(pos.shape, dtype=bool)                            # within the type log's ends
     jumps = []
     for cut, r, size, margin, bracket, a, zz, run_above, run_below in found:
         above = slice(int(np.searchsorted(srow, a, "left")), cut)

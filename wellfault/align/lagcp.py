@@ -29,12 +29,16 @@ from the (tracked) unfiltered lag track as ``MAD(diff)/(0.6745·√2)`` and floo
 steps in the ruptures experiment of §6.2). Steps smaller than ``min_step`` samples are not
 reported.
 
+Window length is a trade: longer windows make chance matches rarer, but with overlapping
+windows the track can slide across a cut by the drift allowed in each straddling window (see
+``drift_cost``), and the median filter and minimum segment (a window's worth of windows) grow.
+On the real-log benchmark 40 rows (6 m) did best; 130 rows (20 m) found fewer cuts.
+
 Measured (benchmarks/bench_curves.py, 210 wells on three real gamma-ray type logs of
-8,000-10,600 samples, windows of 130 rows ≈ 20 m through
-:func:`wellfault.curvecuts.find_cuts_lag_screen`): it finds about nine in ten cuts of
-|Δs| >= 5 m with few false ones, to within a window or so of MD (several metres: a screen,
-not a pick), in about a second per well. On the short recovery cases of
-tests/test_align_lagcp.py (800-sample blocky logs) the default 40-row window suffices.
+8,000-10,600 samples, through :func:`wellfault.curvecuts.find_cuts_lag_screen`): see the
+benchmark's "lag screen" column — it finds most cuts of |Δs| >= 5 m with a few false ones,
+placed to a few metres of MD (a screen, not a pick), in about a second per well; its first,
+untracked form found next to nothing there (chance matches of 6 m windows everywhere).
 
 References
 ----------
@@ -287,7 +291,10 @@ def lag_changepoints(
         1 − correlation, summed over windows].
     drift_rate, drift_cost : from one window to the next the lag may drift by up to
         ``ceil(hop·drift_rate) + 1`` samples (thickness change: 0.2 = 20 % thicker or thinner
-        than predicted), at ``drift_cost`` per sample.
+        than predicted), at ``drift_cost`` per sample. Across the ``window // hop`` windows
+        that straddle a cut the track may slide by that many drifts instead of jumping: keep
+        ``(window // hop)·(ceil(hop·drift_rate) + 1)`` below ``min_step`` (true of the
+        defaults for ``min_step`` >= 13, i.e. 2 m at 0.15 m), or small cuts go unconfirmed.
 
     Returns
     -------
