@@ -13,6 +13,7 @@ from pathlib import Path
 
 from . import CAUTION, __version__
 from .cli_screen import add_screen_parser
+from .cli_watch import add_watch_parser
 from .errors import WellfaultError, WellfaultWarning
 
 __all__ = ["main"]
@@ -110,6 +111,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_demo(sub)
     _add_detect(sub)
     add_screen_parser(sub)
+    add_watch_parser(sub)
     _add_survey(sub)
     return parser
 
