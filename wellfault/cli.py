@@ -220,5 +220,16 @@ def main(argv: list[str] | None = None) -> int:
         return 130
 
 
+def main_for(command: str, argv: list[str] | None = None) -> int:
+    """Run one subcommand (its name may be left out of ``argv``); returns the exit code."""
+    argv = list(sys.argv[1:] if argv is None else argv)
+    if not argv or argv[0] != command:
+        argv = [command, *argv]
+    try:
+        return main(argv)
+    except SystemExit as exc:  # --help and --version
+        return int(exc.code or 0)
+
+
 if __name__ == "__main__":  # pragma: no cover
     sys.exit(main())

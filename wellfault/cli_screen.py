@@ -12,10 +12,9 @@ from __future__ import annotations
 
 import argparse
 import sys
-import warnings
 
 from . import CAUTION
-from .errors import InputError, WellfaultError, WellfaultWarning
+from .errors import InputError
 
 __all__ = ["add_screen_parser", "cmd_screen", "main"]
 
@@ -119,28 +118,10 @@ def cmd_screen(args) -> int:
 
 
 def main(argv: list[str] | None = None) -> int:
-    """Stand-alone entry (``python -m wellfault.cli_screen``), with ``wellfault``'s exit codes."""
-    parser = argparse.ArgumentParser(prog="wellfault")
-    sub = parser.add_subparsers(dest="command")
-    add_screen_parser(sub)
-    argv = list(sys.argv[1:] if argv is None else argv)
-    if not argv or argv[0] != "screen":
-        argv = ["screen", *argv]
-    try:
-        args = parser.parse_args(argv)
-    except SystemExit as exc:  # argparse: usage errors exit 2, --help exits 0
-        return int(exc.code or 0)
-    try:
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", WellfaultWarning)
-            code = args.func(args)
-        for w in caught:
-            if issubclass(w.category, WellfaultWarning):
-                print(f"wellfault: warning: {w.message}", file=sys.stderr)
-        return code
-    except WellfaultError as err:
-        print(f"wellfault: error: {err}", file=sys.stderr)
-        return EXIT_BAD_INPUT
+    """Stand-alone entry (``python -m wellfault.cli_screen``): ``wellfault screen ...``."""
+    from .cli import main_for
+
+    return main_for("screen", argv)
 
 
 if __name__ == "__main__":  # pragma: no cover

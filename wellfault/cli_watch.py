@@ -144,7 +144,7 @@ class _TextPrinter:
             return ["    no surface still to come"]
         sx = self.sx
         w = max(12, max(len(str(s)) for s in df["surface"]))
-        lines = [f"    tops still to come (re-forecast along the path ahead):",
+        lines = ["    tops still to come (re-forecast along the path ahead):",
                  f"      {'surface':<{w}} {'MD ' + sx:>10} {'TVD ' + sx:>10} {'to go':>9} "
                  f"{'shift':>9}"]
         for r in df.itertuples(index=False):
@@ -362,32 +362,10 @@ def _watch(args) -> int:
 
 
 def main(argv: list[str] | None = None) -> int:
-    """Stand-alone entry (``python -m wellfault.cli_watch``), with ``wellfault``'s exit codes."""
-    parser = argparse.ArgumentParser(prog="wellfault")
-    sub = parser.add_subparsers(dest="command")
-    add_watch_parser(sub)
-    argv = list(sys.argv[1:] if argv is None else argv)
-    if not argv or argv[0] != "watch":
-        argv = ["watch", *argv]
-    try:
-        args = parser.parse_args(argv)
-    except SystemExit as exc:  # argparse: usage errors exit 2, --help exits 0
-        return int(exc.code or 0)
-    try:
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", WellfaultWarning)
-            code = args.func(args)
-        for w in caught:
-            if issubclass(w.category, WellfaultWarning):
-                print(f"wellfault: warning: {w.message}", file=sys.stderr)
-        return code
-    except WellfaultError as err:
-        print(f"wellfault: error: {err}", file=sys.stderr)
-        return EXIT_BAD_INPUT
-    except FileNotFoundError as err:
-        print(f"wellfault: error: file not found: {err.filename}; check the path",
-              file=sys.stderr)
-        return EXIT_BAD_INPUT
+    """Stand-alone entry (``python -m wellfault.cli_watch``): ``wellfault watch ...``."""
+    from .cli import main_for
+
+    return main_for("watch", argv)
 
 
 if __name__ == "__main__":  # pragma: no cover

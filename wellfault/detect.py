@@ -9,7 +9,7 @@ command line gives them.
 from __future__ import annotations
 
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -19,7 +19,7 @@ from .column import ReferenceColumn
 from .curvecuts import CurveSettings, combine_evidence, find_cuts_from_curves
 from .dip import BedDip
 from .errors import InputError, SurveyError, WellfaultWarning, input_error
-from .measure import FaultAssumptions, FaultPlane
+from .measure import FaultAssumptions
 from .results import FaultCut, cuts_to_frame
 from .topcuts import TopsTolerance, find_cuts_from_tops
 from .trajectory import Trajectory

@@ -10,7 +10,6 @@ import dataclasses
 import math
 from dataclasses import dataclass, field
 
-import numpy as np
 import pandas as pd
 
 from .units import DepthUnit, parse_depth_unit
