@@ -25,14 +25,15 @@ from wellfault.errors import InputError
 def _oracle_with_margins(rows, ref, pad, off_cost, *, w, stretch, jump, strain, kind, delta,
                          null_misfit, subsample):
     """Every path over the type log plus ``pad`` off-log columns on either side, whose misfit
-    is ``off_cost`` for every row (engine.py, "Off the type log"); moves as the plain DP."""
+    is ``off_cost`` for every row with a valid value and ``null_misfit`` for a row without
+    any, like every column (engine.py, "Off the type log"); moves as the plain DP."""
     R, M = rows.n_rows, ref.shape[0]
     lo, hi = _plain_bounds(ref, subsample)
     Mp = M + 2 * pad
 
     def e(r, j):
         if j < pad or j >= pad + M:
-            return off_cost
+            return null_misfit if np.isnan(rows.values[r]).all() else off_cost
         return _plain_misfit(rows.values[r], lo[j - pad], hi[j - pad], w, kind, delta,
                              null_misfit)
 

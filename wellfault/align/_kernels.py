@@ -48,6 +48,14 @@ def _row_min(a, off, m):
 
 
 @njit(cache=True)
+def _all_null(x):
+    for c in range(x.shape[0]):
+        if not np.isnan(x[c]):
+            return False
+    return True
+
+
+@njit(cache=True)
 def _first_index(a, off, m, value):
     x = a[off:off + m]
     for j in range(m):
@@ -67,7 +75,8 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
     disables jumps. The engine runs it with (0, -1, 0, M); the cut evidence runs it on a
     window of rows with a fixed or free start, without jumps. Columns before ``off_lo`` and
     from ``off_hi`` on are off the type log (engine.py, "Off the type log"): their misfit is
-    the constant ``off_cost``; ``rowmean`` is the mean over the columns on the log.
+    the constant ``off_cost`` (``null_misfit`` on a row without any valid value, like every
+    column); ``rowmean`` is the mean over the columns on the log.
 
     Per row: the misfit pass, one pass per intermediate row of the FAST/SLOW moves, then one
     fused branch-free pass over the candidates (a disabled move reads an all-inf row), so the
@@ -87,14 +96,17 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
         cr = codes[r - code_row0, c0:c1]
         misfit_cols(xr[r], lo_t, hi_t, ref_nan, w, kind, delta, null_misfit, Er[pad:pad + m],
                     c0, c1)
+        # a row without any valid value costs null_misfit everywhere, off the log included
+        # (with off_cost there, a long run of nulls would draw the path off the log)
+        oc = null_misfit if _all_null(xr[r]) else off_cost
         a0, a1 = max(c0, off_lo), min(c1, off_hi)
-        rowmean[r] = _row_sum(Er, pad + a0, a1 - a0) / (a1 - a0) if a1 > a0 else off_cost
+        rowmean[r] = _row_sum(Er, pad + a0, a1 - a0) / (a1 - a0) if a1 > a0 else oc
         if a0 > c0 or a1 < c1:
             eo = Er[pad:pad + m]
             for j in range(c0, min(c1, off_lo)):
-                eo[j] = off_cost
+                eo[j] = oc
             for j in range(max(c0, off_hi), c1):
-                eo[j] = off_cost
+                eo[j] = oc
         fr = Fr[pad + c0:pad + c1]
         er = Er[pad + c0:pad + c1]
         if r == r_first:

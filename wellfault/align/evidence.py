@@ -55,7 +55,7 @@ def _sample_misfit(z, pos, ref_t, w, kind, delta, null_misfit) -> np.ndarray:
 
 def _path_misfit(x, path, p, kind, delta, null_misfit) -> np.ndarray:
     """Misfit of each row at its path column (same definition as misfit.misfit_cols; off-log
-    columns cost ``off_cost``)."""
+    columns cost ``off_cost``, or ``null_misfit`` on a row without any valid value)."""
     lo, hi = p["lo_t"][:, path].T, p["hi_t"][:, path].T            # (R, C)
     d = np.maximum(np.maximum(lo - x, x - hi), 0.0)
     q = np.minimum(d, delta)
@@ -67,7 +67,8 @@ def _path_misfit(x, path, p, kind, delta, null_misfit) -> np.ndarray:
     good = wsum > 0
     out[good] = (np.where(ok, rho, 0.0) * ww).sum(axis=1)[good] / wsum[good]
     off = (path < p["off"]) | (path >= p["off"] + p["m_ref"])
-    out[off] = p["off_cost"]
+    valid = ~np.isnan(x).all(axis=1)               # a row without values: null_misfit anywhere
+    out[off & valid] = p["off_cost"]
     return out
 
 
