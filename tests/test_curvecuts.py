@@ -256,3 +256,56 @@ def test_null_curves_and_too_short_wells_are_refused():
     short = Well("W-5", syn.well.curves.iloc[:5], "m")
     with pytest.raises(AlignmentError, match="only 5 samples"):
         find_cuts_from_curves(short, col, syn.trajectory)
+
+
+# -- depth gaps in a finished log ----------------------------------------------------------------
+def _with_gap(well, lo_m, hi_m):
+    import dataclasses
+
+    md = well.curves.index.to_numpy()
+    return dataclasses.replace(well, curves=well.curves[(md < lo_m) | (md > hi_m)])
+
+
+@pytest.mark.parametrize("gap", [(1040.0, 1052.0), (1120.0, 1135.0)])
+def test_a_gap_in_the_log_is_bridged_not_read_as_a_fault(gap):
+    """Rows missing over 12-15 m of hole (a log spliced from two runs): bridged with nulls at
+    the usual step, the alignment keeps the strat geometry across the gap and finds only the
+    true cut; without bridging (``gap_m=inf``) the single step across the gap asks the path for
+    the whole gap's strat in one row and it reads a jump there (the defect this guards)."""
+    col, syn = _model()
+    well = _with_gap(syn.well, *gap)
+    res = find_cuts_from_curves(well, col, syn.trajectory)
+    (cut,) = res.cuts
+    assert abs(cut.md_m - syn.cuts.iloc[0].md_m) < 0.5
+    assert cut.delta_s_m == pytest.approx(syn.cuts.iloc[0].delta_s_m, abs=0.5)
+    np.testing.assert_array_equal(res.track["md_m"], well.curves.index)   # the log's samples
+    raw = find_cuts_from_curves(well, col, syn.trajectory,
+                                settings=CurveSettings.make(gap_m=np.inf))
+    assert len(raw.cuts) == 2 and any(gap[0] <= c.md_m <= gap[1] + 1 for c in raw.cuts)
+
+
+def test_a_cut_inside_a_gap_is_bracketed_by_the_gap():
+    """The true cut (MD 1100 m) lies in 11 m of unlogged hole: it is reported at the first
+    logged sample below (DESIGN.md: a cut sits at the first sample below it) with a bracket
+    from the last logged sample above the gap, and its size is still measured."""
+    col, syn = _model()
+    well = _with_gap(syn.well, 1095.0, 1106.0)
+    (cut,) = find_cuts_from_curves(well, col, syn.trajectory).cuts
+    md = well.curves.index.to_numpy()
+    assert cut.md_m == pytest.approx(md[md > 1106.0][0])
+    assert cut.md_top_m <= md[md < 1095.0][-1] and cut.md_base_m >= cut.md_m
+    assert cut.md_top_m <= syn.cuts.iloc[0].md_m <= cut.md_base_m
+    assert cut.delta_s_m == pytest.approx(syn.cuts.iloc[0].delta_s_m, abs=1.0)
+
+
+def test_gap_fillers_follow_the_usual_step():
+    from wellfault.curvecuts import gap_fillers
+
+    assert gap_fillers(100.0, 101.5, 0.5, 2.0).size == 0              # within gap_m
+    assert gap_fillers(100.0, 102.4, 0.5, 2.0).size == 0              # within 5 steps
+    fill = gap_fillers(100.0, 112.0, 0.1524, 2.0)
+    assert np.diff(fill).max() == pytest.approx(np.diff(fill).min())
+    assert abs(np.diff(fill)[0] - 0.1524) < 0.1524 / 10
+    assert 100.0 < fill[0] < fill[-1] < 112.0
+    with pytest.raises(InputError, match="gap_m"):
+        CurveSettings.make(gap_m=0)

@@ -49,6 +49,12 @@ class CurveSettings:
       the margins off.
     * ``calibrate_window_m`` — window of the gain/offset-free running standardisation of the
       calibration pre-pass (engine ``calibrate_window``).
+    * ``gap_m`` — a depth gap in the log longer than this (and than five sampling steps) is
+      bridged with null samples at the usual step before the alignment
+      (:func:`gap_fillers`): the strat geometry across it stays right and the path is carried
+      by the predicted geometry alone there (a single sample spanning the gap would ask the
+      alignment for a strat increment of the whole gap in one row, and unlogged rock cannot
+      be placed). ``inf`` turns it off. ``wellfault watch`` bridges gaps the same way.
 
     ``min_confidence`` is the least calibrated confidence of a reported cut (default 0.01: a
     jump the evidence gives under 1 % of being real — in practice a well that does not
@@ -62,11 +68,12 @@ class CurveSettings:
     off_log_m: float = 150.0
     calibrate_window_m: float = 9.0
     min_confidence: float = 0.01
+    gap_m: float = 2.0
 
     @classmethod
     def make(cls, curves=None, *, min_jump_m: float = 2.0, off_log_m: float = 150.0,
              calibrate_window_m: float = 9.0, min_confidence: float = 0.01,
-             **engine) -> CurveSettings:
+             gap_m: float = 2.0, **engine) -> CurveSettings:
         if curves is None:
             spec: tuple[tuple[str, float], ...] = (("GR", 1.0),)
         elif isinstance(curves, dict):
@@ -76,8 +83,10 @@ class CurveSettings:
                          for c in curves)
         if not spec:
             raise InputError("no curves to align; name at least one, e.g. --curve GR")
+        if not float(gap_m) > 0:
+            raise InputError(f"gap_m must be a positive length in metres (got {gap_m!r})")
         return cls(spec, float(min_jump_m), tuple(sorted(engine.items())), float(off_log_m),
-                   float(calibrate_window_m), float(min_confidence))
+                   float(calibrate_window_m), float(min_confidence), float(gap_m))
 
     def engine_kwargs(self, ds_m: float) -> dict:
         """Keyword arguments for the engine on a type log of step ``ds_m``."""
@@ -115,6 +124,50 @@ class CurveResult:
     track: pd.DataFrame
     alignment: object  # wellfault.align.Alignment
     curves: tuple[str, ...]
+
+
+def gap_fillers(md_above: float, md_below: float, nominal_m: float, gap_m: float
+                ) -> np.ndarray:
+    """MDs of the null samples that bridge a depth gap in a log (empty when there is none).
+
+    A step ``md_below - md_above`` longer than ``gap_m`` and than five nominal sampling steps
+    is a gap; it is filled with ``int(gap / nominal) - 1`` samples (at most 100,000) evenly
+    spaced, about the nominal step apart. Shared by the batch inputs and the live watcher so
+    that both see the same samples.
+
+    >>> gap_fillers(100.0, 101.0, 0.5, 2.0).size, gap_fillers(100.0, 103.0, 0.5, 2.0).tolist()
+    (0, [100.5, 101.0, 101.5, 102.0, 102.5])
+    """
+    gap = float(md_below) - float(md_above)
+    if not (nominal_m > 0 and gap > max(float(gap_m), 5.0 * float(nominal_m))):
+        return np.empty(0)
+    k = min(int(gap / nominal_m) - 1, 100_000)
+    return float(md_above) + np.arange(1, k + 1) * (gap / (k + 1))
+
+
+def _bridge_gaps(md: np.ndarray, x: np.ndarray, gap_m: float
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(md, x, real) with the log's depth gaps bridged by null samples (:func:`gap_fillers`);
+    ``real`` marks the samples of the log."""
+    real = np.ones(md.size, bool)
+    if md.size < 3 or not math.isfinite(gap_m):
+        return md, x, real
+    d = np.diff(md)
+    nominal = float(np.median(d))
+    big = np.flatnonzero(d > max(gap_m, 5.0 * nominal))
+    if big.size == 0:
+        return md, x, real
+    parts_md, parts_x, parts_r, start = [], [], [], 0
+    for i in big:
+        fill = gap_fillers(md[i], md[i + 1], nominal, gap_m)
+        parts_md += [md[start:i + 1], fill]
+        parts_x += [x[start:i + 1], np.full((fill.size, x.shape[1]), np.nan)]
+        parts_r += [real[start:i + 1], np.zeros(fill.size, bool)]
+        start = i + 1
+    parts_md.append(md[start:])
+    parts_x.append(x[start:])
+    parts_r.append(real[start:])
+    return np.concatenate(parts_md), np.concatenate(parts_x), np.concatenate(parts_r)
 
 
 def predicted_steps(md_m: np.ndarray, trajectory, bed_dip: BedDip, picks=None) -> np.ndarray:
@@ -167,6 +220,14 @@ class _Inputs:
     step: np.ndarray       # (N,) predicted strat increment [reference samples]
     ds: float              # type-log step [m]
     s0: float              # s of the first type-log sample [m]
+    real: np.ndarray       # (N,) bool: a sample of the log (False: a null bridging a gap)
+
+    def track(self, s: np.ndarray, unit, confidence) -> pd.DataFrame:
+        """The position track on the log's own samples (gap fillers dropped)."""
+        conf = np.broadcast_to(np.asarray(confidence, float), s.shape)
+        return pd.DataFrame({"md_m": self.md[self.real], "s_m": s[self.real],
+                             "unit": np.asarray(unit, dtype=object)[self.real],
+                             "confidence": conf[self.real]})
 
 
 def _inputs(well, column, trajectory, bed_dip, settings, picks) -> _Inputs:
@@ -179,8 +240,9 @@ def _inputs(well, column, trajectory, bed_dip, settings, picks) -> _Inputs:
                              "evidence needs a logged interval")
     if np.all(np.isnan(x)):
         raise InputError(f"well {well.name!r}: curves {list(names)} are null everywhere")
+    md, x, real = _bridge_gaps(md, x, float(getattr(settings, "gap_m", 2.0)))
     step = predicted_steps(md, trajectory, bed_dip, picks) / ds
-    return _Inputs(x, ref, weights, names, md, step, ds, s0)
+    return _Inputs(x, ref, weights, names, md, step, ds, s0, real)
 
 
 def align_well(well, column: ReferenceColumn, trajectory, *, bed_dip: BedDip | None = None,
@@ -196,17 +258,31 @@ def align_well(well, column: ReferenceColumn, trajectory, *, bed_dip: BedDip | N
     s = inp.s0 + np.asarray(alignment.path, dtype=float) * inp.ds
     if alignment.on_log is not None:
         s = np.where(alignment.on_log, s, np.nan)        # off the type log: not placed
-    return alignment, s, inp.names
+    return alignment, s[inp.real], inp.names
 
 
 def _measured(well, column, trajectory, bed_dip, assumptions, picks, inp: _Inputs, *,
               sample: int, first: int, last: int, delta_s_m: float, j_before: float,
               j_after: float, confidence: float, method: str, note: str) -> FaultCut:
     """A FaultCut at well sample ``sample`` (first below), bracket samples ``first..last``,
-    reference positions ``j_before``/``j_after`` of the samples either side."""
-    md = inp.md
+    reference positions ``j_before``/``j_after`` of the samples either side.
+
+    Samples that bridge a gap in the log are not logged rock: a cut or bracket end on one is
+    moved to the log's own samples (the cut to the first logged sample below, the bracket out
+    to the logged samples either side of the gap), so a cut in a gap is bracketed by it."""
+    md, real = inp.md, inp.real
+    n = md.size
+    if not real.all():
+        logged = np.flatnonzero(real)
+        below = logged[np.searchsorted(logged, sample):]
+        sample = int(below[0]) if below.size else int(logged[-1])
+        above = logged[logged <= max(first - 1, 0)]
+        first = int(above[-1]) + 1 if above.size else 0
+        after = logged[np.searchsorted(logged, max(last, sample)):]
+        last = int(after[0]) if after.size else n - 1
+        first = min(first, sample)
     md_top = float(md[max(first - 1, 0)])
-    md_base = float(md[min(last, md.size - 1)])
+    md_base = float(md[min(last, n - 1)])
     above, below = column.unit_at(np.array([inp.s0 + j_before * inp.ds,
                                             inp.s0 + j_after * inp.ds]))
     return measure_cut(
@@ -248,8 +324,7 @@ def find_cuts_from_curves(
         s = np.where(alignment.on_log, s, np.nan)        # off the type log: not placed
     ds, names = inp.ds, inp.names
     conf = np.asarray(alignment.confidence, dtype=float)
-    track = pd.DataFrame({"md_m": inp.md, "s_m": s, "unit": column.unit_at(s),
-                          "confidence": np.where(np.isfinite(s), conf, 0.0)})
+    track = inp.track(s, column.unit_at(s), np.where(np.isfinite(s), conf, 0.0))
     end = len(column.type_log) - 1
     cuts: list[FaultCut] = []
     for j in alignment.jumps:
@@ -317,8 +392,7 @@ def find_cuts_dtw_baseline(
     jpos = jrow if orient > 0 else (m - 1) - jrow
     srow = rows.sample_row
     s = inp.s0 + jpos[srow] * inp.ds
-    track = pd.DataFrame({"md_m": inp.md, "s_m": s, "unit": column.unit_at(s),
-                          "confidence": np.full(inp.md.size, np.nan)})
+    track = inp.track(s, column.unit_at(s), np.nan)
     cuts = []
     for c in found:
         sample = int(np.clip(np.searchsorted(srow, c.row, "left"), 1, inp.md.size - 1))
@@ -371,8 +445,7 @@ def find_cuts_lag_screen(
     else:
         lag = np.full(n, np.nan)
     s = inp.s0 + (pred + lag) * inp.ds
-    track = pd.DataFrame({"md_m": inp.md, "s_m": s, "unit": column.unit_at(s),
-                          "confidence": np.full(n, np.nan)})
+    track = inp.track(s, column.unit_at(s), np.nan)
     cuts = []
     nw = tr.sample.size
     for c in tr.cuts:
