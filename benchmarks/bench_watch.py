@@ -172,15 +172,15 @@ def q(v, p):
 
 def print_accuracy(cuts: pd.DataFrame, wells: pd.DataFrame) -> None:
     print("\nlatency: metres of new hole from the true cut to the alert (alerted cuts)")
-    print(f"{'subset':<26}{'cuts':>6}{'recall':>8}{'median m':>10}{'p90 m':>8}{'max m':>8}"
-          f"{'median TST m':>14}")
+    print(f"{'subset':<30}{'cuts':>6}{'recall':>8}{'median m':>10}{'p90 m':>8}{'max m':>8}"
+          f"{'TST median':>12}{'TST p90':>9}")
 
     def line(name, d):
         found = d[d.found]
-        print(f"{name:<26}{len(d):>6}{(d.found.mean() if len(d) else np.nan):>8.2f}"
+        print(f"{name:<30}{len(d):>6}{(d.found.mean() if len(d) else np.nan):>8.2f}"
               f"{q(found.latency, 50):>10.1f}{q(found.latency, 90):>8.1f}"
               f"{(found.latency.max() if len(found) else np.nan):>8.1f}"
-              f"{q(found.latency * found.r, 50):>14.1f}")
+              f"{q(found.latency * found.r, 50):>12.1f}{q(found.latency * found.r, 90):>9.1f}")
 
     line("all", cuts)
     for lo, hi in BANDS:
@@ -191,6 +191,10 @@ def print_accuracy(cuts: pd.DataFrame, wells: pd.DataFrame) -> None:
         line(f"|Δs| >= 10 m, {kind}", big[big.kind == kind])
     for col in sorted(cuts.column.unique()):
         line(f"|Δs| >= 10 m, {col}", big[big.column == col])
+    # r = |t·n|, metres of strat per metre of hole: the log shows r m of stratigraphy for each
+    # metre drilled, so the hole needed to see a cut grows as 1/r
+    for lo, hi in ((0.7, 1.01), (0.4, 0.7), (0.2, 0.4), (0.0, 0.2)):
+        line(f"|Δs| >= 10 m, r {lo:g}-{min(hi, 1):g}", big[(big.r >= lo) & (big.r < hi)])
     km = wells.km.sum()
     print(f"\nfalse alerts: {wells.false.sum()} on {len(wells)} wells ({km:.1f} km of hole): "
           f"{wells.false.sum() / len(wells):.3f} per well, {wells.false.sum() / km:.3f} per km; "
@@ -327,8 +331,9 @@ def calibrate(n_inv: int, n_real: int, jump_penalty, procs: int) -> None:
                  for k in range(n_real)]
     with Pool(procs) as pool:
         runs = pool.map(_log_checks, jobs, chunksize=1)
-    print(f"calibration: {len(runs)} wells (seeds 10000+), live jump penalty "
-          f"{jump_penalty or 'as batch'}; {sum(len(r['log']) for r in runs)} evidence checks")
+    pen = jump_penalty or f"{WatchSettings().live_jump_factor:g} x the batch's"
+    print(f"calibration: {len(runs)} wells (seeds 10000+), live jump penalty {pen}; "
+          f"{sum(len(r['log']) for r in runs)} evidence checks")
     print(f"{'corr >=':>8}{'margin >=':>10}{'stable >=':>10}{'recall':>8}{'median m':>10}"
           f"{'p90 m':>8}{'false':>7}  median by kind")
     for c in (0.8, 0.85, 0.9):

@@ -179,6 +179,40 @@ def test_streaming_sample_by_sample_equals_batch():
     assert [j.sample for j in batch.jumps] == [200]
 
 
+def test_tail_of_the_stream_is_the_batch_alignment_of_its_rows():
+    """``StreamingAligner.tail`` traces only the last rows, yet gives the optimal path's own
+    positions and jump there (the property a well being drilled relies on)."""
+    rng = np.random.default_rng(7)
+    ref = np.cumsum(rng.normal(size=400))
+    ref = (ref - ref.mean()) / ref.std() + 0.3 * rng.normal(size=400)
+    # the well of the test above: down, turning, and up through a fault
+    step = np.concatenate([np.full(120, 0.6), np.linspace(0.6, -0.8, 40), np.full(140, -0.8)])
+    pos = 150 + np.cumsum(step)
+    pos[200:] += 35.0
+    well = np.interp(pos, np.arange(400), ref) + 0.05 * rng.normal(size=300)
+    well[50:53] = np.nan
+    eng = AlignmentEngine(ref)
+    c, s = eng.calibrate(well, step)
+    batch = eng.align(well, step, center=c, scale=s)
+    st = eng.stream(center=c, scale=s)
+    st.push(well, step)
+    assert 0 < st.best_cost <= batch.score          # committed rows (the last may be unfinished)
+    tail = st.tail(120)
+    assert tail is not None and tail.n_rows == st.n_rows
+    assert st.n_rows - 130 <= tail.row0 <= st.n_rows - 110      # about 120 rows, no more
+    seg = slice(tail.sample0, tail.sample_end)
+    np.testing.assert_array_equal(tail.alignment.path, batch.path[seg])
+    np.testing.assert_array_equal(tail.alignment.sample_row + tail.row0, st.sample_row[seg])
+    (jt,) = tail.alignment.jumps
+    (jb,) = batch.jumps
+    assert jt.sample + tail.sample0 == jb.sample == 200
+    assert jt.size == pytest.approx(jb.size, abs=0.5) and abs(jt.size) == pytest.approx(35, abs=1)
+    assert np.isfinite(jt.margin) and 0.0 <= jt.confidence <= 1.0
+    with pytest.raises(ValueError):
+        st.sample_row[0] = 5                                      # read-only views
+    assert eng.stream().tail(50) is None                          # nothing pushed yet
+
+
 def test_stream_accepts_chunks_and_default_standardisation():
     rng = np.random.default_rng(2)
     ref = rng.normal(size=(100, 1))

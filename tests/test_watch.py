@@ -106,8 +106,8 @@ def test_work_per_sample_does_not_grow_with_the_hole(drilled):
     rows = w._al.n_rows
     assert rows > 2500
     # each evaluation traces and measures only the last rows, whatever was drilled before
-    assert tail.n - tail.lo <= w.settings.lookback_rows
-    assert tail.i_hi - tail.i_lo <= w.settings.lookback_rows + 8
+    assert tail.n_rows - tail.row0 <= w.settings.lookback_rows
+    assert tail.sample_end - tail.sample0 <= w.settings.lookback_rows + 8
 
 
 def test_jsonl_schema(drilled):

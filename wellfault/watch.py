@@ -35,10 +35,14 @@ between chance matches until enough rows below it pin it down). A candidate is r
    Evidence is computed when a candidate is due, and again every ``recheck_m`` while it stays
    below the threshold.
 
-The defaults come from drilling 60 forward-modelled wells (benchmarks/bench_watch.py
-``--calibrate``, seeds apart from the benchmark's) and choosing the rule with the fewest false
-alerts at the shortest latency. ``jump_penalty`` sets the live engine's jump penalty (default:
-the batch's); the whole-well check always uses the batch's settings.
+The defaults come from drilling 40 forward-modelled wells (benchmarks/bench_watch.py
+``--calibrate``, seeds apart from the benchmark's) with live jump penalties of 6 (the batch's),
+3 and 2 and scoring every rule of a grid (correlation 0.8/0.85/0.9, margin 0/3/6, stable rows
+4/6/8/12): half the batch's penalty (``live_jump_factor``), correlation >= 0.8, margin >= 3 and
+4 stable rows cut the median latency for |Δs| >= 10 m from 9.7 m (the first defaults: batch
+penalty, 0.85, 3, 6 rows) to 7.2 m for 3 false alerts instead of 1 on the 40 wells; a penalty
+of 2 gained 0.2 m more for 5 false alerts. The 90th percentile (about 30 m) did not move with
+any rule: it is set by high-angle wells (module docstring of benchmarks/bench_watch.py).
 
 A raised cut is watched while it lies within the traced tail (``lookback_rows`` rows above the
 bit): if the best path moves it by more than ``revise_md_m`` or changes its size by more than
@@ -70,8 +74,9 @@ Live feed problems
   from the first row that differs, the samples from that MD down are dropped and the alignment
   re-run on the samples above (notice ``relogged``); cuts below that MD wait until the bit
   passes them again;
-* a gap in depth larger than ``gap_m`` (and five sampling steps) is bridged with null samples at
-  the usual step, so the strat geometry stays right (notice ``gap``);
+* a gap in depth larger than the curve settings' ``gap_m`` (and five sampling steps) is bridged
+  with null samples at the usual step, so the strat geometry stays right (notice ``gap``) —
+  :func:`wellfault.curvecuts.gap_fillers`, as the batch command bridges gaps in a finished log;
 * nulls are pushed as nulls (the engine gives them a neutral misfit); ``null_run_m`` of hole
   without any valid value is reported once (notice ``nulls``) and so is the return of data;
 * a depth that is not a number is skipped (notice ``bad-depth``).
@@ -88,34 +93,34 @@ surface would have had without the cuts raised so far (the shift they cause).
 
 Coupling with the engine
 ------------------------
-The tail is read through the engine's own pieces: its traceback kernel
-(``align._kernels.traceback_block``) over the aligner's move-code blocks, and
-``align.evidence.build_alignment`` run on a view of the :class:`StreamingAligner` re-based at
-the tail's first row (:class:`_TailView`), so that sizes, placement, brackets, margins and
-confidences keep the batch definitions as the engine evolves. The view names the aligner's
-per-row and per-sample arrays (``_meta, _rows, _Rr, _sig, _run, _rowmin, _rowarg, _rowmean,
-_srow, _spos, _z``, ``_blocks``, ``_block_rows``); tests/test_watch.py fails if they change.
-A public ``StreamingAligner`` method returning the alignment of the last rows would remove
-this coupling.
+The watcher reads the engine only through public pieces of
+:class:`~wellfault.align.StreamingAligner`: ``push``, ``tail`` (the alignment of the last rows,
+with the batch definitions of sizes, placement, brackets, margins and confidences),
+``best_cost``, ``sample_row`` and ``sample_position``.
 """
 
 from __future__ import annotations
 
 import dataclasses
+import inspect
 import math
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
 from .column import ReferenceColumn
-from .curvecuts import CurveSettings
+from .curvecuts import CurveSettings, gap_fillers
 from .dip import BedDip
 from .errors import InputError, WellfaultError
 from .measure import FaultAssumptions, measure_cut
 from .results import FaultCut, cuts_to_frame
 from .trajectory import Trajectory
 from .units import DepthUnit, parse_depth_unit
+
+if TYPE_CHECKING:
+    from .align import TailAlignment
 
 __all__ = ["WellWatcher", "WatchSettings", "WatchEvent", "BitState", "extend_with_plan",
            "EVENT_KINDS", "REVISION_CHANGES"]
@@ -139,7 +144,10 @@ class WatchSettings:
     min_confidence : the engine's confidence that raises a cut on its own; also the level at
         which the whole-well check confirms a raised cut.
     alert_margin, alert_correlation : the live evidence that raises a stable candidate.
-    jump_penalty : the live engine's jump penalty (None: the batch's).
+    jump_penalty, live_jump_factor : the live engine's jump penalty (None:
+        ``live_jump_factor`` times the batch engine's). A jump of the path at the bit is only a
+        candidate until the alert rule confirms it, so the live engine may take jumps on less
+        evidence than the batch (the whole-well check keeps the batch's settings).
     evaluate_every_m, update_every_m : new hole between evaluations, between ``update`` events.
     lookback_rows : rows traced back from the bit at each evaluation (the window in which
         raised cuts are still revised).
@@ -152,18 +160,18 @@ class WatchSettings:
     calibrate_rows, calibrate_growth : first calibration of the well's curves, and the growth
         of the hole between re-calibrations.
     alert_before_calibration : allow alerts before the first calibration.
-    gap_m : depth gaps longer than this (and five sampling steps) are bridged with nulls.
     null_run_m : hole without a valid value before it is reported.
     forecast_step_m, forecast_horizon_m : MD step of the forecast along the path ahead, and
         how far it looks beyond the bit when no plan is given (straight on).
     """
 
-    confirm_rows: int = 6
+    confirm_rows: int = 4
     confirm_m: float = 0.0
     min_confidence: float = 0.7
     alert_margin: float = 3.0
-    alert_correlation: float = 0.85
+    alert_correlation: float = 0.8
     jump_penalty: float | None = None
+    live_jump_factor: float = 0.5
     evaluate_every_m: float = 0.5
     update_every_m: float = 1.0
     lookback_rows: int = 200
@@ -177,14 +185,13 @@ class WatchSettings:
     calibrate_rows: int = 400
     calibrate_growth: float = 2.0
     alert_before_calibration: bool = False
-    gap_m: float = 2.0
     null_run_m: float = 20.0
     forecast_step_m: float = 1.0
     forecast_horizon_m: float = 1000.0
 
     def __post_init__(self) -> None:
         for name in ("confirm_m", "evaluate_every_m", "update_every_m", "revise_md_m",
-                     "revise_abs_m", "retract_after_m", "recheck_m", "gap_m", "null_run_m",
+                     "revise_abs_m", "retract_after_m", "recheck_m", "null_run_m",
                      "forecast_step_m", "forecast_horizon_m"):
             v = float(getattr(self, name))
             if not (math.isfinite(v) and v >= 0) or (name.endswith("every_m") and v <= 0) \
@@ -197,6 +204,8 @@ class WatchSettings:
             raise InputError("need confirm_rows >= 1 and lookback_rows >= 4 x confirm_rows")
         if self.jump_penalty is not None and not float(self.jump_penalty) > 0:
             raise InputError(f"jump_penalty must be positive (got {self.jump_penalty!r})")
+        if not float(self.live_jump_factor) > 0:
+            raise InputError(f"live_jump_factor must be positive (got {self.live_jump_factor!r})")
         if not float(self.calibrate_growth) > 1.0:
             raise InputError("calibrate_growth must be > 1")
 
@@ -395,38 +404,6 @@ class _Jump:
 
 
 @dataclass
-class _Tail:
-    lo: int                    # first row of the tail
-    i_lo: int                  # first sample of the tail
-    i_hi: int                  # one past its last sample (committed rows only)
-    n: int                     # rows of the aligner when traced
-    evidence: bool
-    alignment: object          # wellfault.align.Alignment of the tail
-
-
-class _Arr:
-    __slots__ = ("a",)
-
-    def __init__(self, a: np.ndarray) -> None:
-        self.a = a
-
-
-class _TailView:
-    """The streaming aligner seen from row ``lo`` and sample ``i_lo`` on (views, re-based row
-    numbers), for :func:`wellfault.align.evidence.build_alignment`."""
-
-    def __init__(self, al, lo: int, n: int, i_lo: int, i_hi: int) -> None:
-        self.engine, self._p, self.center, self.scale = al.engine, al._p, al.center, al.scale
-        self.n_samples = i_hi - i_lo
-        for name in ("_meta", "_rows", "_Rr", "_sig", "_run", "_rowmin", "_rowarg",
-                     "_rowmean"):
-            setattr(self, name, _Arr(getattr(al, name).a[lo:n]))
-        self._srow = _Arr(al._srow.a[i_lo:i_hi] - lo)
-        self._spos = _Arr(al._spos.a[i_lo:i_hi])
-        self._z = _Arr(al._z.a[i_lo:i_hi])
-
-
-@dataclass
 class _Candidate:
     row: int
     md: float
@@ -535,8 +512,13 @@ class WellWatcher:
         self._ds = float(column.type_log_step_m)
         kwargs = curves.engine_kwargs(self._ds) if hasattr(curves, "engine_kwargs") else \
             dict(curves.engine)                       # the engine options the batch uses
-        if settings.jump_penalty is not None:         # the live engine's own (final check: batch)
+        # the live engine's own jump penalty (the whole-well check keeps the batch's)
+        if settings.jump_penalty is not None:
             kwargs["jump_penalty"] = float(settings.jump_penalty)
+        else:
+            batch = kwargs.get("jump_penalty", inspect.signature(
+                AlignmentEngine.__init__).parameters["jump_penalty"].default)
+            kwargs["jump_penalty"] = float(settings.live_jump_factor) * float(batch)
         self.engine = AlignmentEngine(np.stack(ref, axis=1), weights=np.asarray(weights),
                                       **kwargs)
         self._s0 = float(tl.index[0])
@@ -562,9 +544,7 @@ class WellWatcher:
         self._next_eval = -math.inf
         self._next_update = -math.inf
         # tail of the best path
-        self._path, self._landing, self._jumped = _Buf((), np.int64), _Buf((), np.uint8), \
-            _Buf((), np.uint8)
-        self._tail_cache: _Tail | None = None
+        self._tail_cache: TailAlignment | None = None
         self._state: BitState | None = None
         self._state_n = -1
         self._cands: list[_Candidate] = []
@@ -651,14 +631,13 @@ class WellWatcher:
         if math.isfinite(self._last_md):
             gap = m - self._last_md
             nominal = self._nominal if self._nominal > 0 else gap
-            if gap > max(self.settings.gap_m, 5.0 * nominal) and nominal > 0:
-                k = min(int(gap / nominal) - 1, 100_000)
+            fill = gap_fillers(self._last_md, m, nominal, self.curve_settings.gap_m)
+            if fill.size:
                 nan = np.full(len(self.curves), np.nan)
-                for q in range(1, k + 1):
-                    self._pending.append((self._last_md + q * gap / (k + 1), nan, True))
+                self._pending.extend((float(f), nan, True) for f in fill)
                 events.append(self._notice(
                     "gap", f"no data between MD {self._last_md:.2f} and {m:.2f} m (gap of "
-                    f"{gap:.2f} m): bridged with {k} null sample(s) at the usual step"))
+                    f"{gap:.2f} m): bridged with {fill.size} null sample(s) at the usual step"))
             else:
                 self._recent_steps.append(gap)
                 if len(self._recent_steps) >= 16 or self._nominal <= 0:
@@ -790,8 +769,7 @@ class WellWatcher:
         c, s = self.engine.calibrate(x, step)
         cand = self.engine.stream(center=c, scale=s)
         cand.push(x, step)
-        old = float(self._al._rowmin.a[self._al.n_rows - 1])
-        new = float(cand._rowmin.a[cand.n_rows - 1])
+        old, new = self._al.best_cost, cand.best_cost
         first = not self._calibrated
         self._calibrated = True
         if new < old:
@@ -810,72 +788,23 @@ class WellWatcher:
                 "spread fit them best; kept"))
 
     # ------------------------------------------------------------------ the path's tail
-    def _tail(self, evidence: bool) -> _Tail | None:
-        """The alignment of the last ``lookback_rows`` rows (cached until the next push).
-
-        The best path is traced back from the bit over the tail only (the engine's traceback
-        kernel), the tail's start put on a cell the path enters by a plain one-row move, and
-        the engine's own :func:`~wellfault.align.evidence.build_alignment` run on a view of the
-        streaming aligner re-based at that row (:class:`_TailView`): jumps, sizes, placement,
-        brackets and confidences have exactly the batch definitions, at a cost that depends on
-        the tail's length, not on the hole drilled.
-        """
-        from .align import _kernels as K
-        from .align.evidence import build_alignment
-
-        al = self._al
-        n = al.n_rows
-        if n < 16:
-            return None
+    def _tail(self, evidence: bool) -> TailAlignment | None:
+        """The alignment of the last ``lookback_rows`` rows (cached until the next push):
+        :meth:`wellfault.align.StreamingAligner.tail`, whose jumps, sizes, placement, brackets
+        and confidences have the batch definitions, at a cost that depends on the tail's
+        length, not on the hole drilled."""
+        n = self._al.n_rows
         cached = self._tail_cache
-        if cached is not None and cached.n == n and (cached.evidence or not evidence):
+        if cached is not None and cached.n_rows == n and (cached.evidence or not evidence):
             return cached
-        path = self._path.ensure(n)
-        landing = self._landing.ensure(n)
-        jumped = self._jumped.ensure(n)
         look = int(self.settings.lookback_rows)
         if evidence:   # the evidence window above a young jump: evidence_rows, as the batch
             look = max(look, int(self.engine.evidence_rows) + 4 * int(self.settings.confirm_rows)
                        + 20)
-        stop = max(0, n - look)
-        landing[stop:n] = 0
-        jumped[stop:n] = 0
-        p = al._p
-        B = al._block_rows
-        r, j = n - 1, int(al._rowarg.a[n - 1])
-        while r >= stop:
-            b = r // B
-            k0 = max(0, stop - b * B)
-            r, j = K.traceback_block(al._blocks[b][k0:], b * B + k0, r, j, al._Rr.a, al._sig.a,
-                                     p["bf"], p["bs"], al._rowarg.a, path, landing, jumped)
-            if r < 0:
-                break
-        lo = r + 1
-        # start on a landing cell entered by FOLLOW (or the path's START): a traceback from the
-        # view's last row then ends exactly there
-        for q in range(lo, n - 8):
-            if landing[q] and al._blocks[q // B][q % B, path[q]] in (K.FOLLOW, K.START):
-                lo = q
-                break
-        else:
-            return None
-        N = al.n_samples
-        srow = al._srow.a[:N]
-        i_lo = int(np.searchsorted(srow, lo, "left"))
-        i_hi = int(np.searchsorted(srow, n, "left"))        # samples of committed rows
-        if i_hi - i_lo < 2:
-            return None
-        view = _TailView(al, lo, n, i_lo, i_hi)
-        blocks = []
-        for b in range(lo // B, (n - 1) // B + 1):
-            blk = al._blocks[b]
-            k0 = max(0, lo - b * B)
-            blocks.append((b * B + k0 - lo, blk[k0:]))
-        alignment = build_alignment(view, n - lo, blocks, evidence)
-        self._tail_cache = _Tail(lo, i_lo, i_hi, n, evidence, alignment)
+        self._tail_cache = self._al.tail(look, evidence)
         return self._tail_cache
 
-    def _jumps(self, tail: _Tail) -> list[_Jump]:
+    def _jumps(self, tail: TailAlignment) -> list[_Jump]:
         """The tail's jumps that would be cut rows in the batch table (same filters)."""
         out = []
         end = len(self.column.type_log) - 1
@@ -886,11 +815,11 @@ class WellWatcher:
             ends = (float(jp.j_before), float(jp.j_after))
             if getattr(jp, "off_log", False) or not all(0.5 <= v <= end - 0.5 for v in ends):
                 continue
-            sample = int(jp.sample) + tail.i_lo
-            out.append(_Jump(int(jp.row) + tail.lo, sample, float(self._md.a[sample]), ds_m,
+            sample = int(jp.sample) + tail.sample0
+            out.append(_Jump(int(jp.row) + tail.row0, sample, float(self._md.a[sample]), ds_m,
                              float(jp.confidence), float(jp.margin), float(jp.correlation),
-                             (int(jp.bracket[0]) + tail.i_lo,
-                                                    int(jp.bracket[1]) + tail.i_lo),
+                             (int(jp.bracket[0]) + tail.sample0,
+                              int(jp.bracket[1]) + tail.sample0),
                              self._s0 + ends[0] * self._ds, self._s0 + ends[1] * self._ds))
         return out
 
@@ -938,10 +867,10 @@ class WellWatcher:
         if tail is None:
             return
         s = self.settings
-        n = tail.n
+        n = tail.n_rows
         bit = float(self._md.a[self._n - 1])
         jumps = self._jumps(tail)
-        srow = self._al._srow.a
+        srow = self._al.sample_row
         used: set[int] = set()
         changed = False
         # raised cuts: still there? moved? resized?
@@ -952,7 +881,7 @@ class WellWatcher:
             if k >= self._n:
                 continue
             r_c = int(srow[k])
-            if r_c < tail.lo + 2 and tail.lo > 0:
+            if r_c < tail.row0 + 2 and tail.row0 > 0:
                 lv.frozen = True             # left the traced tail: final while drilling
                 continue
             if n - r_c < s.confirm_rows:
@@ -1052,10 +981,11 @@ class WellWatcher:
             return None
         al = tail.alignment
         last = self._n - 1
-        k = min(last, tail.i_hi - 1) - tail.i_lo            # last sample of a committed row
+        k = min(last, tail.sample_end - 1) - tail.sample0   # last sample of a committed row
         pos_last = float(al.path[k])
         # the samples after it (unfinished row) move on as predicted
-        pos_last += float(self._al._spos.a[last] - self._al._spos.a[k + tail.i_lo])
+        spos = self._al.sample_position
+        pos_last += float(spos[last] - spos[k + tail.sample0])
         on_log = True if getattr(al, "on_log", None) is None else bool(al.on_log[k])
         s_bit = self._s0 + pos_last * self._ds
         md = float(self._md.a[last])

@@ -26,10 +26,12 @@ from .engine import (
 from .lagcp import LagCut, LagTrack, lag_changepoints
 from .misfit import MISFITS, misfit_matrix, robust_location_scale, standardise
 from .resample import StratRows, resample_strat
+from .stream import TailAlignment
 
 __all__ = [
     "AlignmentEngine",
     "StreamingAligner",
+    "TailAlignment",
     "Alignment",
     "Jump",
     "stretch_moves",

@@ -8,6 +8,7 @@ the whole well, so batch and streaming results are identical by construction.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -20,7 +21,7 @@ from .resample import max_new_rows, new_resampler_state, resample_chunk
 if TYPE_CHECKING:
     from .engine import Alignment, AlignmentEngine
 
-__all__ = ["StreamingAligner"]
+__all__ = ["StreamingAligner", "TailAlignment"]
 
 
 def _as_curves(values, n_curves: int, what: str) -> np.ndarray:
@@ -45,6 +46,47 @@ class _Grow:
             new[: self.a.shape[0]] = self.a
             self.a = new
         return self.a
+
+
+@dataclass(frozen=True)
+class TailAlignment:
+    """The optimal path's last rows, as :meth:`StreamingAligner.tail` returns them.
+
+    ``alignment`` is the :class:`~wellfault.align.engine.Alignment` of rows ``row0`` to
+    ``n_rows - 1`` and of well samples ``sample0`` to ``sample_end - 1`` (the samples of
+    committed rows): its row and sample numbers, jump brackets included, count from ``row0``
+    and ``sample0``. Its jumps, sizes, placements, margins and confidences have the batch
+    definitions (:mod:`wellfault.align.evidence`), computed on the tail alone.
+    """
+
+    row0: int
+    sample0: int
+    sample_end: int
+    n_rows: int
+    evidence: bool
+    alignment: Alignment
+
+
+class _Arr:
+    __slots__ = ("a",)
+
+    def __init__(self, a: np.ndarray) -> None:
+        self.a = a
+
+
+class _TailView:
+    """A streaming aligner seen from row ``lo`` and sample ``i_lo`` on (views, re-based row
+    numbers): what :func:`~wellfault.align.evidence.build_alignment` reads."""
+
+    def __init__(self, al: StreamingAligner, lo: int, n: int, i_lo: int, i_hi: int) -> None:
+        self.engine, self._p, self.center, self.scale = al.engine, al._p, al.center, al.scale
+        self.n_samples = i_hi - i_lo
+        for name in ("_meta", "_rows", "_Rr", "_sig", "_run", "_rowmin", "_rowarg",
+                     "_rowmean"):
+            setattr(self, name, _Arr(getattr(al, name).a[lo:n]))
+        self._srow = _Arr(al._srow.a[i_lo:i_hi] - lo)
+        self._spos = _Arr(al._spos.a[i_lo:i_hi])
+        self._z = _Arr(al._z.a[i_lo:i_hi])
 
 
 class StreamingAligner:
@@ -85,6 +127,9 @@ class StreamingAligner:
         self._rowmean = _Grow((), float)
         self._block_rows = int(np.clip(2**22 // m, 16, 4096))
         self._blocks: list[np.ndarray] = []
+        self._tpath = _Grow((), np.int64)    # traceback of the tail (tail())
+        self._tland = _Grow((), np.uint8)
+        self._tjump = _Grow((), np.uint8)
         self.n_samples = 0
         self.n_rows = 0
 
@@ -151,7 +196,79 @@ class StreamingAligner:
                            p["off"] + p["m_ref"], p["off_cost"])
             r = rend
 
+    # -- state ---------------------------------------------------------------------------------
+    @property
+    def best_cost(self) -> float:
+        """Total cost of the optimal path through the committed rows (inf before the first)."""
+        return float(self._rowmin.a[self.n_rows - 1]) if self.n_rows else np.inf
+
+    @property
+    def sample_row(self) -> np.ndarray:
+        """DP row of each pushed sample (read-only view; the last samples may belong to the
+        unfinished row ``n_rows``)."""
+        v = self._srow.a[: self.n_samples].view()
+        v.flags.writeable = False
+        return v
+
+    @property
+    def sample_position(self) -> np.ndarray:
+        """Predicted strat position of each pushed sample [reference samples, from the first
+        sample] (read-only view)."""
+        v = self._spos.a[: self.n_samples].view()
+        v.flags.writeable = False
+        return v
+
     # -- result -------------------------------------------------------------------------------
+    def tail(self, rows: int, evidence: bool = True) -> TailAlignment | None:
+        """The alignment of about the last ``rows`` committed rows of the optimal path.
+
+        The path is traced back from the best cell of the last committed row over ``rows``
+        rows only, the tail's start put on the first cell there that the path enters by a
+        one-row move (or its start), and the alignment evidence computed on that tail. Cost
+        O(rows), whatever was pushed before: what a well being drilled needs at each step.
+        None when the tail is too short (fewer than 16 rows pushed, or no such start cell).
+        """
+        from .evidence import build_alignment
+
+        n = self.n_rows
+        if n < 16:
+            return None
+        rows = max(int(rows), 16)
+        path, landing = self._tpath.ensure(n), self._tland.ensure(n)
+        jumped = self._tjump.ensure(n)
+        stop = max(0, n - rows)
+        landing[stop:n] = 0
+        jumped[stop:n] = 0
+        p, B = self._p, self._block_rows
+        r, j = n - 1, int(self._rowarg.a[n - 1])
+        while r >= stop:
+            b = r // B
+            k0 = max(0, stop - b * B)
+            r, j = K.traceback_block(self._blocks[b][k0:], b * B + k0, r, j, self._Rr.a,
+                                     self._sig.a, p["bf"], p["bs"], self._rowarg.a, path,
+                                     landing, jumped)
+            if r < 0:
+                break
+        # start on a landing cell entered by FOLLOW (or the path's START): a traceback from the
+        # tail's last row then ends exactly there
+        for lo in range(r + 1, n - 8):
+            if landing[lo] and self._blocks[lo // B][lo % B, path[lo]] in (K.FOLLOW, K.START):
+                break
+        else:
+            return None
+        srow = self._srow.a[: self.n_samples]
+        i_lo = int(np.searchsorted(srow, lo, "left"))
+        i_hi = int(np.searchsorted(srow, n, "left"))        # samples of committed rows
+        if i_hi - i_lo < 2:
+            return None
+        blocks = []
+        for b in range(lo // B, (n - 1) // B + 1):
+            k0 = max(0, lo - b * B)
+            blocks.append((b * B + k0 - lo, self._blocks[b][k0:]))
+        alignment = build_alignment(_TailView(self, lo, n, i_lo, i_hi), n - lo, blocks,
+                                    evidence)
+        return TailAlignment(lo, i_lo, i_hi, n, bool(evidence), alignment)
+
     def current(self) -> Alignment:
         """The optimal alignment of all samples pushed so far."""
         return self._result(evidence=True)
