@@ -86,7 +86,7 @@ def test_success_exits_0_with_the_table_on_stdout_and_the_rest_on_stderr(files) 
     (["detect", "{las}", "--column", "{column}", "--tops", "{tops}", "--dip", "steep"],
      r"wellfault: error: --dip: cannot read dip 'steep'; write it as dip/dip-azimuth"),
     (["detect", "{las}", "--column", "{column}", "--tops", "{tops}", "--fault", "60-090"],
-     r"wellfault: error: --fault: cannot read the plane attitude \(got '60-090'\)"),
+     r"wellfault: error: --fault: cannot read fault dip '60-090'; write it as dip/dip-azimuth"),
     (["detect", "{las}", "--column", "{column}", "--tops", "{tops}", "--tolerance", "lots"],
      r"argument --tolerance: invalid float value: 'lots'"),
     (["detect", "{las}", "--column", "{column}", "--tops", "{tops}", "--depth-unit", "yd"],

@@ -350,11 +350,11 @@ def test_attitude_text_is_parsed():
 @pytest.mark.parametrize(
     ("text", "match"),
     [
-        ("95/010", r"dip outside 0-90.*'95/010'.*e\.g\. 12/075"),  # common practice: 0-90
+        ("95/010", r"--fault: dip outside 0-90 degrees \(got 95\.0\); dip is measured down"),
+        ("12/075/3", r"cannot read dip '12/075/3'; write it as dip/dip-azimuth.*e\.g\. 12/075"),
         ("-5/010", r"dip outside 0-90"),
         ("12/400", r"dip azimuth outside 0-360"),
         ("12-075", r"cannot read.*e\.g\. 12/075"),
-        ("12/075/3", r"cannot read"),
         ("NE", r"cannot read"),
     ],
 )

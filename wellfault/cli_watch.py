@@ -247,7 +247,7 @@ def _watch(args) -> int:
             raise InputError(f"{args.dip_table}: while drilling the dip must be given with depth "
                              "(md_<unit>, dip, dip_azimuth), not per surface (no picks yet)")
         bed = BedDip.from_md_table(t, source=args.dip_table)
-    fault = parse_attitude(args.fault, source="--fault") if args.fault else None
+    fault = parse_attitude(args.fault, what="fault dip", source="--fault") if args.fault else None
     pitch = None
     if args.pitch:
         from .slip import parse_pitch

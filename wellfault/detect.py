@@ -111,7 +111,7 @@ def analyse_well(
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
     _check_dip_surfaces(bed_dip, column)
     if isinstance(fault, str):
-        fault = parse_attitude(fault)
+        fault = parse_attitude(fault, what="fault dip")
     if isinstance(pitch, str):
         pitch = _parse_pitch_text(pitch)
     assumptions = FaultAssumptions(fault=fault, pitch=pitch, planes=tuple(planes))
@@ -349,7 +349,7 @@ def detect_files(
     if isinstance(fault, str):
         from .geometry import parse_attitude
 
-        fault = parse_attitude(fault, source="--fault")
+        fault = parse_attitude(fault, what="fault dip", source="--fault")
     if isinstance(pitch, str):
         from .slip import parse_pitch
 

@@ -15,47 +15,14 @@ import pandas as pd
 from numpy.typing import ArrayLike, NDArray
 
 from .errors import InputError, input_error
-from .geometry import bed_normal
+from .geometry import bed_normal, check_attitude, parse_attitude
 
-__all__ = ["BedDip", "bed_normal_vector", "parse_dip_text"]
+__all__ = ["BedDip", "bed_normal_vector"]
 
 
 def bed_normal_vector(dip_deg: ArrayLike, dip_azimuth_deg: ArrayLike) -> NDArray[np.float64]:
     """Down-section unit normal, shape (..., 3); see :func:`wellfault.geometry.bed_normal`."""
     return np.asarray(bed_normal(dip_deg, dip_azimuth_deg), dtype=float)
-
-
-def parse_dip_text(text: str, *, what: str = "dip", source: object = None
-                   ) -> tuple[float, float]:
-    """Read the trade's ``dip/dip-azimuth`` notation (``"12/075"``) into two floats [°].
-
-    ``source`` (e.g. ``"--dip"``) names where the text came from in messages.
-
-    >>> parse_dip_text("12/075")
-    (12.0, 75.0)
-    """
-    parts = str(text).replace(" ", "").split("/")
-    try:
-        if len(parts) != 2:
-            raise ValueError
-        dip, azi = float(parts[0]), float(parts[1])
-    except ValueError:
-        raise input_error(
-            f"cannot read {what} {text!r}", source=source,
-            fix="write it as dip/dip-azimuth in degrees, e.g. 12/075",
-        ) from None
-    _check_attitude(dip, azi, what=what, source=source)
-    return dip, azi % 360.0
-
-
-def _check_attitude(dip: float, azi: float, *, what: str = "dip", source=None, row=None) -> None:
-    if not np.isfinite(dip) or not 0.0 <= dip <= 90.0:
-        raise input_error(f"{what} outside 0-90 degrees", source=source, row=row, value=dip,
-                          fix="dip is measured down from horizontal, 0 to 90; give the direction "
-                              "of dip as the azimuth")
-    if not np.isfinite(azi) or not 0.0 <= azi <= 360.0:
-        raise input_error(f"{what} azimuth outside 0-360 degrees", source=source, row=row,
-                          value=azi, fix="give the dip azimuth clockwise from north, 0 to 360")
 
 
 @dataclass(frozen=True)
@@ -77,13 +44,13 @@ class BedDip:
     @classmethod
     def constant(cls, dip_deg: float = 0.0, dip_azimuth_deg: float = 0.0) -> BedDip:
         """One dip and dip azimuth for the whole well [°]."""
-        _check_attitude(float(dip_deg), float(dip_azimuth_deg))
+        check_attitude(float(dip_deg), float(dip_azimuth_deg))
         return cls("constant", float(dip_deg), float(dip_azimuth_deg) % 360.0)
 
     @classmethod
     def parse(cls, text: str, *, source: object = None) -> BedDip:
         """``BedDip.parse("12/075")``; ``source`` names the text's origin in messages."""
-        return cls.constant(*parse_dip_text(text, source=source))
+        return cls.constant(*parse_attitude(text, what="dip", source=source))
 
     @classmethod
     def per_surface(cls, table: pd.DataFrame, *, default: tuple[float, float] = (0.0, 0.0),
@@ -94,7 +61,7 @@ class BedDip:
         """
         t = table.reset_index(drop=True)
         for i, row in t.iterrows():
-            _check_attitude(float(row["dip_deg"]), float(row["dip_azimuth_deg"]),
+            check_attitude(float(row["dip_deg"]), float(row["dip_azimuth_deg"]),
                             source=source, row=i + 1)
         return cls("surface", float(default[0]), float(default[1]), t.copy())
 
@@ -106,7 +73,7 @@ class BedDip:
             raise input_error("dip table has no rows", source=source,
                               fix="give at least one md, dip, dip azimuth row")
         for i, row in t.iterrows():
-            _check_attitude(float(row["dip_deg"]), float(row["dip_azimuth_deg"]),
+            check_attitude(float(row["dip_deg"]), float(row["dip_azimuth_deg"]),
                             source=source, row=i + 1)
         if t["md_m"].duplicated().any():
             md = float(t.loc[t["md_m"].duplicated(), "md_m"].iloc[0])

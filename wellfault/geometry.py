@@ -40,6 +40,7 @@ __all__ = [
     "section_kind",
     "classify_fault",
     "parse_attitude",
+    "check_attitude",
     "expected_md_span",
     "andersonian_fault_dip",
     "ANDERSONIAN_DIPS",
@@ -638,13 +639,34 @@ _NUM = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)"
 _ATTITUDE = re.compile(rf"^\s*({_NUM})\s*/\s*({_NUM})\s*$")
 
 
-def parse_attitude(text: str, *, source: object = None) -> tuple[float, float]:
-    """Parse a plane written ``dip/dip-azimuth`` (e.g. ``"12/075"``).
+def check_attitude(dip: float, azi: float, *, what: str = "dip", source: object = None,
+                   row: int | None = None) -> None:
+    """Refuse a dip outside 0-90 degrees or a dip azimuth outside 0-360 (common practice: a
+    plane is given by its dip from horizontal and the azimuth it dips towards).
+
+    ``what`` names the quantity (``"dip"``, ``"fault dip"``, ...), ``source`` and ``row``
+    where it came from, in the message.
+    """
+    if not np.isfinite(dip) or not 0.0 <= dip <= 90.0:
+        raise input_error(f"{what} outside 0-90 degrees", source=source, row=row, value=dip,
+                          fix="dip is measured down from horizontal, 0 to 90; give the direction "
+                              "of dip as the azimuth (an overturned plane dips the other way)")
+    if not np.isfinite(azi) or not 0.0 <= azi <= 360.0:
+        raise input_error(f"{what} azimuth outside 0-360 degrees", source=source, row=row,
+                          value=azi, fix="give the dip azimuth clockwise from north, 0 to 360")
+
+
+def parse_attitude(text: str, *, what: str = "dip", source: object = None
+                   ) -> tuple[float, float]:
+    """Parse a plane written ``dip/dip-azimuth`` (e.g. ``"12/075"``): the one reader of the
+    trade's notation for bed dips (``--dip``) and fault attitudes (``--fault``).
 
     Parameters
     ----------
     text : str
-        Dip 0-90 and dip azimuth 0-360 separated by ``/``.
+        Dip 0-90 and dip azimuth 0-360 separated by ``/`` (spaces allowed).
+    what : str
+        What the plane is (``"dip"``, ``"fault dip"``, ``"dip of well 'A-1'"``), for messages.
     source : object, optional
         Where the text came from (option name, file and row), for messages.
 
@@ -664,18 +686,13 @@ def parse_attitude(text: str, *, source: object = None) -> tuple[float, float]:
     >>> parse_attitude("12/075")
     (12.0, 75.0)
     """
-    form = "expected dip/dip-azimuth in degrees, e.g. 12/075 (dip 0-90, azimuth 0-360)"
     m = _ATTITUDE.match(str(text))
     if not m:
-        raise input_error("cannot read the plane attitude", source=source, value=str(text),
-                          fix=form)
+        raise input_error(f"cannot read {what} {str(text)!r}", source=source,
+                          fix="write it as dip/dip-azimuth in degrees, e.g. 12/075 (dip 0-90, "
+                              "azimuth 0-360)")
     dip, azi = float(m.group(1)), float(m.group(2))
-    if not 0.0 <= dip <= 90.0:
-        raise input_error("dip outside 0-90 deg", source=source, value=str(text),
-                          fix=form + "; an overturned dip is the opposite dip azimuth")
-    if not 0.0 <= azi <= 360.0:
-        raise input_error("dip azimuth outside 0-360 deg", source=source, value=str(text),
-                          fix=form)
+    check_attitude(dip, azi, what=what, source=source)
     return dip, azi % 360.0
 
 

@@ -269,12 +269,12 @@ def _load(cfg: _Config, task: WellTask, stage: dict) -> _Inputs:
     picks = load_picks(task.tops, task.well, unit)
     bed = cfg.bed_dip or BedDip.constant(0.0, 0.0)
     if task.dip:
-        from .dip import parse_dip_text
+        from .geometry import parse_attitude
 
         text = str(task.dip)
         if _ATTITUDE.match(text):
             stage["file"] = ""
-            bed = BedDip.constant(*parse_dip_text(text, what=f"dip of well {task.well!r}"))
+            bed = BedDip.constant(*parse_attitude(text, what=f"dip of well {task.well!r}"))
         else:
             from .io import read_dip_table
 
