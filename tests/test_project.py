@@ -88,3 +88,4 @@ def test_readme_usage_commands_run_on_the_demo_field(tmp_path, monkeypatch, caps
     assert (tmp_path / "synthetic_wells" / "cuts.csv").is_file()
     assert (tmp_path / "synthetic_wells" / "VR_6H.html").is_file()
     assert (tmp_path / "screen_out" / "cuts.csv").is_file()
+    assert (tmp_path / "screen_out" / "field.html").is_file()

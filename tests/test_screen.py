@@ -284,6 +284,26 @@ def test_cli_exit_codes_summary_and_caution(bad_field, small_field, tmp_path, ca
     assert code == 2 and "--type-well" in capsys.readouterr().err
 
 
+def test_cli_report_holds_the_run(small_field, tmp_path, capsys):
+    """``--report`` writes the field report of the run: every cut and well of the tables, the
+    map with the deviated paths, the caution."""
+    import re
+
+    man, column, _ = small_field
+    out = tmp_path / "run"
+    code = screen_main([str(man), "--column", str(column), "--out", str(out), "--workers", "1",
+                        "--no-progress", "--no-neighbours", "--report",
+                        str(tmp_path / "field.html")])
+    assert code == 0 and "report written" in capsys.readouterr().err
+    text = (tmp_path / "field.html").read_text(encoding="utf-8")
+    cuts = pd.read_csv(out / "cuts.csv")
+    assert len(cuts) > 0 and CAUTION in text
+    assert "http://" not in text and "https://" not in text            # self-contained
+    assert len(re.findall(r"data:image/png;base64,", text)) >= 1      # the map
+    for name in pd.read_csv(out / "wells.csv")["well"]:
+        assert f">{name}<" in text
+
+
 def test_manifest_and_argument_errors(tmp_path, small_field):
     man, column, _ = small_field
     with pytest.raises(InputError, match="format"):

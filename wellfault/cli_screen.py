@@ -14,7 +14,7 @@ import argparse
 import sys
 
 from . import CAUTION
-from .errors import InputError
+from .errors import InputError, WellfaultError
 
 __all__ = ["add_screen_parser", "cmd_screen", "main"]
 
@@ -72,6 +72,10 @@ def add_screen_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--no-faults", action="store_true",
                    help="do not group the cuts into faults")
     p.add_argument("--no-progress", action="store_true", help="no progress bar")
+    p.add_argument("--report", metavar="FIELD.html",
+                   help="also write a self-contained HTML report of the field: map of cuts and "
+                        "fitted fault traces, separation along strike, the cut, well and error "
+                        "tables")
     p.set_defaults(func=cmd_screen)
     return p
 
@@ -113,8 +117,52 @@ def cmd_screen(args) -> int:
     print(f"tables written to {args.out}: " + ", ".join(
         f"{n}.{args.format}" for n in ("cuts", "errors", "wells", "faults", "fault_profiles")),
         file=sys.stderr)
+    if args.report:
+        path = _write_report(args, result)
+        print(f"report written to {path}", file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_SOME_FAILED if result.n_failed else EXIT_OK
+
+
+#: Deviated well paths are drawn on the report's map for fields up to this many wells (each
+#: survey is read again); larger fields show well locations only.
+REPORT_MAX_PATHS = 2000
+
+
+def _write_report(args, result):
+    """The field report of a screening run (``--report``)."""
+    from pathlib import Path
+
+    from .io import read_manifest, read_survey
+    from .report import write_field_report
+    from .topcuts import TopsTolerance
+    from .trajectory import Trajectory
+
+    manifest = read_manifest(args.manifest)
+    wells = manifest.copy()
+    for c in ("x_m", "y_m"):
+        if c not in wells.columns:
+            wells[c] = float("nan")
+    status = result.wells.set_index("well")["status"] if len(result.wells) else None
+    paths = {}
+    if "survey" in manifest.columns and len(manifest) <= REPORT_MAX_PATHS:
+        for row in manifest.itertuples(index=False):
+            if not row.survey or (status is not None and status.get(row.well) == "failed"):
+                continue
+            try:
+                paths[row.well] = Trajectory.from_survey(
+                    read_survey(row.survey), x0_m=float(row.x_m), y0_m=float(row.y_m))
+            except (WellfaultError, OSError, ValueError, AttributeError):
+                continue      # the well's own error is in the error table already
+    faults = result.faults
+    if len(faults) and "kind" in faults.columns:
+        faults = faults[faults["kind"] == "fault"]
+    name = Path(args.manifest).resolve().parent.name or Path(args.manifest).stem
+    return write_field_report(
+        args.report, cuts=result.cuts, errors=result.errors, wells=wells, faults=faults,
+        paths=paths, tolerance=TopsTolerance(args.tolerance, args.tolerance_floor),
+        progress=not args.no_progress,
+        title=f"Fault cuts screened in {len(manifest)} wells of {name}")
 
 
 def main(argv: list[str] | None = None) -> int:
