@@ -28,6 +28,16 @@ Goals (watch issue): latency median <= 10 m and 90th percentile <= 20 m for |Δs
 update <= 1 ms per sample with a 10,000-sample type log; after the whole well, the same cuts as
 the batch command.
 
+What sets the latency: the alert needs enough stratigraphy drilled below the cut for the type
+log to tell the fault's two positions apart — a few metres of strat where the log has
+character, tens in a plain interval (right after a cut the well often matches both the
+hanging-wall continuation and the footwall; see DEVELOPERS.md, "While drilling"). A well
+drills r = |t·n| metres of strat per metre of hole, so in metres of hole the latency grows as
+1/r. The table's ``TST`` columns (latency × r) and its r bands show it: about 5 m of strat at
+the median for every r, so the MD goal holds where r >= 0.7 (vertical and moderately deviated
+wells) and cannot hold for a high-angle well at a low angle to bedding (r < 0.2: 20 m of hole
+is under 4 m of strat).
+
 Run:  python benchmarks/bench_watch.py [--wells 30] [--real-wells 16] [--sizes 2000 5000 10000]
 CPU times are process CPU time (the machine may be shared); the header prints the machine. Not
 a test.
