@@ -935,7 +935,7 @@ def read_manifest(
     """
     raw = _read_raw(path)
     well_col, _ = _need_column(raw, _WELL_NAMES, "well")
-    base_dir = raw.path.parent.resolve()
+    base_dir = str(raw.path.parent.resolve())
     lines = raw.frame.index.to_numpy()
     names = _text(raw, well_col)
     seen: dict[str, int] = {}
@@ -960,10 +960,10 @@ def read_manifest(
                     continue
                 if key == "dip" and _ATTITUDE.match(value):
                     cells[k] = value.replace(" ", "")  # an attitude 'dip/azimuth', not a file
-                elif Path(value).is_absolute():
+                elif os.path.isabs(value):
                     cells[k] = value
-                else:
-                    cells[k] = str((base_dir / value).resolve())
+                else:      # lexical join: no file-system call per cell (10,000 wells: 1.7 s)
+                    cells[k] = os.path.normpath(os.path.join(base_dir, value))
         out[key] = pd.Series(cells, dtype=object)
     for key, synonyms in (("x_m", ("x", "easting", "x_coord", "xcoord", "surface_x")),
                           ("y_m", ("y", "northing", "y_coord", "ycoord", "surface_y")),
