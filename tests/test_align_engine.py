@@ -151,11 +151,12 @@ def test_returned_path_costs_the_reported_score():
     assert al.score == pytest.approx(mis.sum() + n_jumps * 1.0 + n_strain * 0.05)
 
 
-def test_streaming_sample_by_sample_equals_batch():
+def _turning_well():
+    """A well that drills down, turns and drills up through a fault (a 35-sample jump at sample
+    200), with fractional steps and three nulls; its engine, standardisation and batch result."""
     rng = np.random.default_rng(7)
     ref = np.cumsum(rng.normal(size=400))
     ref = (ref - ref.mean()) / ref.std() + 0.3 * rng.normal(size=400)
-    # a well that drills down, turns and drills up through a fault, with fractional steps
     step = np.concatenate([np.full(120, 0.6), np.linspace(0.6, -0.8, 40), np.full(140, -0.8)])
     pos = 150 + np.cumsum(step)
     pos[200:] += 35.0
@@ -163,7 +164,11 @@ def test_streaming_sample_by_sample_equals_batch():
     well[50:53] = np.nan
     eng = AlignmentEngine(ref)
     c, s = eng.calibrate(well, step)
-    batch = eng.align(well, step, center=c, scale=s)
+    return well, step, eng, c, s, eng.align(well, step, center=c, scale=s)
+
+
+def test_streaming_sample_by_sample_equals_batch():
+    well, step, eng, c, s, batch = _turning_well()
     st = eng.stream(center=c, scale=s)
     for i in range(well.shape[0]):
         st.push(well[i], step[i])
@@ -182,18 +187,7 @@ def test_streaming_sample_by_sample_equals_batch():
 def test_tail_of_the_stream_is_the_batch_alignment_of_its_rows():
     """``StreamingAligner.tail`` traces only the last rows, yet gives the optimal path's own
     positions and jump there (the property a well being drilled relies on)."""
-    rng = np.random.default_rng(7)
-    ref = np.cumsum(rng.normal(size=400))
-    ref = (ref - ref.mean()) / ref.std() + 0.3 * rng.normal(size=400)
-    # the well of the test above: down, turning, and up through a fault
-    step = np.concatenate([np.full(120, 0.6), np.linspace(0.6, -0.8, 40), np.full(140, -0.8)])
-    pos = 150 + np.cumsum(step)
-    pos[200:] += 35.0
-    well = np.interp(pos, np.arange(400), ref) + 0.05 * rng.normal(size=300)
-    well[50:53] = np.nan
-    eng = AlignmentEngine(ref)
-    c, s = eng.calibrate(well, step)
-    batch = eng.align(well, step, center=c, scale=s)
+    well, step, eng, c, s, batch = _turning_well()
     st = eng.stream(center=c, scale=s)
     st.push(well, step)
     assert 0 < st.best_cost <= batch.score          # committed rows (the last may be unfinished)
