@@ -36,7 +36,7 @@ from numpy.typing import NDArray
 
 from .column import ReferenceColumn
 from .errors import InputError
-from .forward import Beds, PlanarFault
+from .forward import Beds, PlanarFault, first_state_change
 
 __all__ = ["plan_wells", "well_positions", "survey_stations", "field_tops", "write_field",
            "PLAN_COLUMNS"]
@@ -377,17 +377,8 @@ def _jump_interval(row, faults, beds, md_a, md_b, state_a, state_b, s_a, s_b, lo
             c_md = md_a + ends[0] / (ends[0] - ends[1]) * (md_b - md_a)
             b_state = state_b.copy()
         else:
-            a, b = lo_md, md_b
-            for _ in range(200):  # bisect for the first change after lo_md (as simulate_well)
-                if b - a <= 1e-9:
-                    break
-                c = 0.5 * (a + b)
-                if np.array_equal(state(c), lo_state):
-                    a = c
-                else:
-                    b = c
+            c_md, b = first_state_change(state, lo_md, md_b, lo_state)   # as simulate_well
             b_state = state(b)
-            c_md = 0.5 * (a + b)
         pc = pos(c_md)
         s_above = float(_restore_one(pc, arrays, lo_state.copy())[0] @ n_vec + beds.origin_s_m)
         s_below = float(_restore_one(pc, arrays, b_state.copy())[0] @ n_vec + beds.origin_s_m)

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import math
 import re
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -410,6 +410,23 @@ def _file_stem(name: str) -> str:
     return re.sub(r"[^A-Za-z0-9_.-]+", "_", name).strip("_") or "well"
 
 
+def first_state_change(state: Callable[[float], np.ndarray], lo_md: float, hi_md: float,
+                       lo_state: np.ndarray) -> tuple[float, float]:
+    """Bisect ``[lo_md, hi_md]`` for the first MD where ``state(md)`` (which fault blocks the
+    point is in) stops equalling ``lo_state``; returns (crossing MD, an MD just past it), to
+    1e-9 m."""
+    a, b = float(lo_md), float(hi_md)
+    for _ in range(200):
+        if b - a <= 1e-9:
+            break
+        c = 0.5 * (a + b)
+        if np.array_equal(state(c), lo_state):
+            a = c
+        else:
+            b = c
+    return 0.5 * (a + b), b
+
+
 def simulate_well(
     column: ReferenceColumn,
     beds: Beds,
@@ -565,17 +582,8 @@ def simulate_well(
         lo_md, hi_md = float(md[i]), float(md[i + 1])
         lo_state, end_state = mem[i].copy(), mem[i + 1].copy()
         while not np.array_equal(lo_state, end_state):
-            a, b = lo_md, hi_md
-            for _ in range(200):  # bisect for the first change after lo_md
-                if b - a <= 1e-9:
-                    break
-                c = 0.5 * (a + b)
-                if np.array_equal(state(c), lo_state):
-                    a = c
-                else:
-                    b = c
+            c_md, b = first_state_change(state, lo_md, hi_md, lo_state)
             b_state = state(b)
-            c_md = 0.5 * (a + b)
             p_c = model_position([c_md])
             q_above = _restore(p_c, faults, lo_state[None, :].copy())[0]
             q_below = _restore(p_c, faults, b_state[None, :].copy())[0]
@@ -673,7 +681,7 @@ def _augment(md: NDArray[np.float64], s: NDArray[np.float64],
     """Insert each cut as two points (md, s_above), (md, s_below) joined by a jump link."""
     if not jumps:
         return md, s, np.zeros(len(md) - 1, dtype=bool)
-    md_parts, s_parts, flag_parts = [], [], []
+    md_parts, s_parts = [], []
     start = 0
     for i, c_md, s_a, s_b in sorted(jumps, key=lambda j: j[1]):
         md_parts.append(md[start:i + 1])

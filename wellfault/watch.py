@@ -115,6 +115,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from ._buffers import GrowBuffer
 from .column import ReferenceColumn
 from .curvecuts import CurveSettings, gap_fillers
 from .dip import BedDip
@@ -380,18 +381,8 @@ class _PathCache:
         return self._pos[i] * (1.0 - f) + self._pos[i + 1] * f
 
 
-class _Buf:
-    """Growable array (capacity doubling)."""
-
-    def __init__(self, tail: tuple = (), dtype=float) -> None:
-        self.a = np.zeros((256,) + tail, dtype=dtype)
-
-    def ensure(self, n: int) -> np.ndarray:
-        if n > self.a.shape[0]:
-            new = np.zeros((max(n, 2 * self.a.shape[0]),) + self.a.shape[1:], self.a.dtype)
-            new[: self.a.shape[0]] = self.a
-            self.a = new
-        return self.a
+def _buf(tail: tuple = (), dtype=float) -> GrowBuffer:
+    return GrowBuffer(tail, dtype, capacity=256)
 
 
 @dataclass
@@ -536,8 +527,8 @@ class WellWatcher:
         self._cal_next = int(settings.calibrate_rows)
         nc = len(names)
         # history of every sample pushed (filler samples bridging gaps included)
-        self._md, self._val = _Buf(), _Buf((nc,))
-        self._step, self._fill = _Buf(), _Buf((), bool)
+        self._md, self._val = _buf(), _buf((nc,))
+        self._step, self._fill = _buf(), _buf((), bool)
         self._n = 0
         self._pending: list[tuple[float, np.ndarray, bool]] = []
         self._last_md = -math.inf

@@ -13,6 +13,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from .._buffers import GrowBuffer as _Grow
 from ..errors import AlignmentError, input_error
 from . import _kernels as K
 from .evidence import build_alignment
@@ -32,20 +33,6 @@ def _as_curves(values, n_curves: int, what: str) -> np.ndarray:
         raise input_error(f"{what} curves must have shape (N, {n_curves})", value=x.shape,
                           fix="pass the same curves, in the same order, as the reference")
     return x
-
-
-class _Grow:
-    """Growable 1-D/2-D buffer (capacity doubling) for O(N) per-row and per-sample arrays."""
-
-    def __init__(self, tail: tuple, dtype) -> None:
-        self.a = np.zeros((64,) + tail, dtype=dtype)
-
-    def ensure(self, n: int) -> np.ndarray:
-        if n > self.a.shape[0]:
-            new = np.zeros((max(n, 2 * self.a.shape[0]),) + self.a.shape[1:], self.a.dtype)
-            new[: self.a.shape[0]] = self.a
-            self.a = new
-        return self.a
 
 
 @dataclass(frozen=True)
