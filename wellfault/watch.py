@@ -96,6 +96,12 @@ by the plan beyond its last station (:func:`extend_with_plan`): for planar beds
 first reaches its ``s``. Its columns give MD, TVD, TVDSS, MD still to drill, and the MD the
 surface would have had without the cuts raised so far (the shift they cause).
 
+Modules
+-------
+:mod:`wellfault.watch_events` holds the settings, events and bit state; :mod:`wellfault.watch_path`
+the path ahead of the bit (survey continued by the plan) and the forecast's crossing search;
+:mod:`wellfault.livefeed` reads a growing file; this module re-exports the public names.
+
 Coupling with the engine
 ------------------------
 The watcher reads the engine only through public pieces of
@@ -109,7 +115,7 @@ from __future__ import annotations
 import dataclasses
 import inspect
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -124,262 +130,21 @@ from .measure import FaultAssumptions, measure_cut
 from .results import FaultCut, cuts_to_frame
 from .trajectory import Trajectory
 from .units import DepthUnit, parse_depth_unit
+from .watch_events import (
+    EVENT_KINDS,
+    REVISION_CHANGES,
+    BitState,
+    WatchEvent,
+    WatchSettings,
+    _frame_in_unit,
+)
+from .watch_path import PathCache, extend_with_plan, first_crossing
 
 if TYPE_CHECKING:
     from .align import TailAlignment
 
 __all__ = ["WellWatcher", "WatchSettings", "WatchEvent", "BitState", "extend_with_plan",
            "EVENT_KINDS", "REVISION_CHANGES"]
-
-#: Kinds of :class:`WatchEvent`.
-EVENT_KINDS = ("update", "cut", "cut-revised", "forecast", "notice", "summary")
-#: ``change`` of a ``cut-revised`` event.
-REVISION_CHANGES = ("moved", "resized", "retracted")
-
-
-@dataclass(frozen=True)
-class WatchSettings:
-    """How cuts are confirmed and how often the watcher reports (see the module docstring).
-
-    Lengths in metres; ``*_rows`` in DP rows (one type-log sample of stratigraphy each).
-
-    Attributes
-    ----------
-    confirm_rows, confirm_m : a candidate must stay put while this much stratigraphy (rows)
-        and MD is drilled below it.
-    min_confidence : the engine's confidence at which the whole-well check confirms a raised
-        cut.
-    alert_margin, alert_correlation : the live evidence that raises a stable candidate.
-    jump_penalty, live_jump_factor : the live engine's jump penalty (None:
-        ``live_jump_factor`` times the batch engine's). A jump of the path at the bit is only a
-        candidate until the alert rule confirms it, so the live engine may take jumps on less
-        evidence than the batch (the whole-well check keeps the batch's settings).
-    evaluate_every_m, update_every_m : new hole between evaluations, between ``update`` events.
-    lookback_rows : rows traced back from the bit at each evaluation (the window in which
-        raised cuts are still revised).
-    move_rows, match_rows : a candidate that moves more than ``move_rows`` starts its count
-        again; jumps within ``match_rows`` of a candidate or raised cut are the same one.
-    revise_md_m, revise_abs_m, revise_rel : a raised cut that moves or changes size by more is
-        revised (event ``cut-revised``).
-    retract_after_m : new hole without a raised cut's jump before it is retracted.
-    recheck_m : new hole between two evidence checks of a candidate below the threshold.
-    calibrate_rows, calibrate_growth : first calibration of the well's curves, and the growth
-        of the hole between re-calibrations.
-    alert_before_calibration : allow alerts before the first calibration.
-    null_run_m : hole without a valid value before it is reported.
-    forecast_step_m, forecast_horizon_m : MD step of the forecast along the path ahead, and
-        how far it looks beyond the bit when no plan is given (straight on).
-    """
-
-    confirm_rows: int = 4
-    confirm_m: float = 0.0
-    min_confidence: float = 0.7
-    alert_margin: float = 3.0
-    alert_correlation: float = 0.8
-    jump_penalty: float | None = None
-    live_jump_factor: float = 0.5
-    evaluate_every_m: float = 0.5
-    update_every_m: float = 1.0
-    lookback_rows: int = 200
-    move_rows: int = 3
-    match_rows: int = 40
-    revise_md_m: float = 3.0
-    revise_abs_m: float = 3.0
-    revise_rel: float = 0.25
-    retract_after_m: float = 2.0
-    recheck_m: float = 1.0
-    calibrate_rows: int = 400
-    calibrate_growth: float = 2.0
-    alert_before_calibration: bool = False
-    null_run_m: float = 20.0
-    forecast_step_m: float = 1.0
-    forecast_horizon_m: float = 1000.0
-
-    def __post_init__(self) -> None:
-        for name in ("confirm_m", "evaluate_every_m", "update_every_m", "revise_md_m",
-                     "revise_abs_m", "retract_after_m", "recheck_m", "null_run_m",
-                     "forecast_step_m", "forecast_horizon_m"):
-            v = float(getattr(self, name))
-            if not (math.isfinite(v) and v >= 0) or (name.endswith("every_m") and v <= 0) \
-                    or (name == "forecast_step_m" and v <= 0):
-                raise InputError(f"watch setting {name} must be a positive length in metres "
-                                 f"(got {getattr(self, name)!r})")
-        if not 0.0 <= float(self.min_confidence) <= 1.0:
-            raise InputError(f"min_confidence must lie in [0, 1] (got {self.min_confidence!r})")
-        if int(self.lookback_rows) < 4 * int(self.confirm_rows) or int(self.confirm_rows) < 1:
-            raise InputError("need confirm_rows >= 1 and lookback_rows >= 4 x confirm_rows")
-        if self.jump_penalty is not None and not float(self.jump_penalty) > 0:
-            raise InputError(f"jump_penalty must be positive (got {self.jump_penalty!r})")
-        if not float(self.live_jump_factor) > 0:
-            raise InputError(f"live_jump_factor must be positive (got {self.live_jump_factor!r})")
-        if not float(self.calibrate_growth) > 1.0:
-            raise InputError("calibrate_growth must be > 1")
-
-
-@dataclass(frozen=True)
-class BitState:
-    """Where the bit is: MD, TVD, TVDSS [m], stratigraphic position s [m TST below the column
-    top], the unit it is in (None above the column top or below its base) and how far below
-    that unit's top [m TST], ``fit`` in [0, 1] (local match of the last rows to the type log),
-    samples read, and whether the well's curves have been calibrated yet."""
-
-    md_m: float
-    tvd_m: float
-    tvdss_m: float
-    s_m: float
-    unit: str | None
-    below_unit_top_m: float
-    fit: float
-    samples: int
-    calibrated: bool
-
-
-@dataclass(frozen=True)
-class WatchEvent:
-    """One thing the watcher has to say (kinds: :data:`EVENT_KINDS`).
-
-    ``bit_md_m`` is the MD of the bit (deepest sample) when it was said. ``cut``/``cut-revised``
-    carry ``cut_id`` and the :class:`FaultCut` (for a retraction: the cut withdrawn);
-    ``cut-revised`` also ``change`` (:data:`REVISION_CHANGES`), ``previous`` and ``message``
-    (why); ``notice`` carries ``notice`` (its kind) and ``message``; ``update`` and ``summary``
-    carry ``state``; ``forecast`` (and ``summary``) the forecast frame in metres.
-    """
-
-    kind: str
-    bit_md_m: float
-    cut_id: int | None = None
-    cut: FaultCut | None = None
-    change: str = ""
-    previous: FaultCut | None = None
-    message: str = ""
-    notice: str = ""
-    state: BitState | None = None
-    forecast: pd.DataFrame | None = None
-    summary: dict = field(default_factory=dict)
-    cuts: tuple = ()
-
-    def to_dict(self, unit: DepthUnit | str = "m") -> dict:
-        """JSON-ready dict; lengths in ``unit`` with the unit in the key (``bit_md_ft``); cut
-        fields named as in the cut table (:func:`wellfault.results.cuts_to_frame`)."""
-        u = parse_depth_unit(unit)
-        k = 1.0 / u.metres
-        sx = u.suffix
-        out: dict = {"event": self.kind, f"bit_md_{sx}": _num(self.bit_md_m * k)}
-        if self.kind == "update" and self.state is not None:
-            out.update(_state_dict(self.state, u))
-        if self.kind in ("cut", "cut-revised"):
-            out["cut_id"] = self.cut_id
-            if self.kind == "cut-revised":
-                out["change"] = self.change
-                out["reason"] = self.message
-                if self.previous is not None:
-                    out[f"previous_md_{sx}"] = _num(self.previous.md_m * k)
-                    out[f"previous_tst_{sx}"] = _num(self.previous.tst_m * k)
-            if self.cut is not None:
-                row = cuts_to_frame([self.cut], u).iloc[0].to_dict()
-                out.update({key: _num(v) for key, v in row.items()})
-                live = self.cut.extra.get("live") if isinstance(self.cut.extra, dict) else None
-                if live:
-                    out["evidence"] = {key: _num(v) for key, v in live.items()}
-        if self.kind == "notice":
-            out["kind"] = self.notice
-            out["message"] = self.message
-        if self.kind in ("forecast", "summary") and self.forecast is not None:
-            out["surfaces"] = [{key: _num(v) for key, v in r.items()}
-                               for r in _frame_in_unit(self.forecast, u).to_dict("records")]
-        if self.kind == "summary":
-            if self.state is not None:
-                out.update(_state_dict(self.state, u))
-            out.update({key: _num(v) for key, v in self.summary.items()})
-            out["cut_table"] = [{key: _num(v) for key, v in r.items()}
-                                for r in cuts_to_frame(self.cuts, u).to_dict("records")]
-        return out
-
-
-def _num(v):
-    if isinstance(v, (np.floating, float)):
-        return round(float(v), 6) if math.isfinite(float(v)) else None
-    if isinstance(v, np.integer):
-        return int(v)
-    if isinstance(v, np.bool_):
-        return bool(v)
-    if v is pd.NA or v is None:
-        return None
-    return v
-
-
-def _state_dict(st: BitState, u: DepthUnit) -> dict:
-    k, sx = 1.0 / u.metres, u.suffix
-    return {f"bit_tvd_{sx}": _num(st.tvd_m * k), f"bit_tvdss_{sx}": _num(st.tvdss_m * k),
-            "unit": st.unit, f"s_{sx}": _num(st.s_m * k),
-            f"below_unit_top_{sx}": _num(st.below_unit_top_m * k), "fit": _num(st.fit),
-            "calibrated": st.calibrated}
-
-
-def _frame_in_unit(df: pd.DataFrame, u: DepthUnit) -> pd.DataFrame:
-    out = pd.DataFrame(index=df.index)
-    for c in df.columns:
-        if c.endswith("_m"):
-            out[c[:-2] + "_" + u.suffix] = df[c].astype(float) / u.metres
-        else:
-            out[c] = df[c]
-    return out
-
-
-def extend_with_plan(trajectory: Trajectory | None, plan: Trajectory | pd.DataFrame | None,
-                     *, x0_m: float = 0.0, y0_m: float = 0.0,
-                     ref_elevation_m: float | None = None) -> Trajectory:
-    """The actual survey continued by the planned trajectory beyond its last station.
-
-    ``plan`` is a :class:`Trajectory` or a survey frame (``md_m, inc_deg, azi_deg``, as from
-    :func:`wellfault.io.read_survey`); where the actual survey exists it takes precedence, the
-    plan's stations below its last station continue it (a minimum-curvature arc joins the last
-    actual station to the next planned one). Without either, a vertical well.
-    """
-    if plan is None:
-        if trajectory is not None:
-            return trajectory
-        return Trajectory.vertical(x0_m=x0_m, y0_m=y0_m, ref_elevation_m=ref_elevation_m)
-    pl = plan.stations if isinstance(plan, Trajectory) else plan
-    pmd, pinc, pazi = (pl[c].to_numpy(float) for c in ("md_m", "inc_deg", "azi_deg"))
-    if trajectory is None:
-        return Trajectory(pmd, pinc, pazi, x0_m=x0_m, y0_m=y0_m,
-                          ref_elevation_m=ref_elevation_m, name="plan", source="plan")
-    st = trajectory.stations
-    md = st["md_m"].to_numpy(float)
-    keep = pmd > md[-1] + 1e-6
-    return Trajectory(np.concatenate([md, pmd[keep]]),
-                      np.concatenate([st["inc_deg"].to_numpy(float), pinc[keep]]),
-                      np.concatenate([st["azi_deg"].to_numpy(float), pazi[keep]]),
-                      x0_m=trajectory.x0_m, y0_m=trajectory.y0_m,
-                      ref_elevation_m=trajectory.ref_elevation_m, name=trajectory.name,
-                      source=f"{trajectory.source or 'survey'} + plan")
-
-
-class _PathCache:
-    """Positions along a trajectory at any MD, linearly interpolated between nodes every
-    ``h`` metres that are computed exactly (minimum curvature) in blocks on demand: one
-    trajectory query per ``block`` nodes instead of one per sample. The interpolation error
-    on an arc of curvature κ is at most κh²/8 (1.4e-5 m for 3°/30 m at h = 0.25 m)."""
-
-    def __init__(self, trajectory: Trajectory, h: float = 0.25, block: int = 2048) -> None:
-        self.t, self.h, self.block = trajectory, float(h), int(block)
-        self._k0 = 0
-        self._pos = np.zeros((0, 3))
-
-    def position(self, md: np.ndarray) -> np.ndarray:
-        md = np.asarray(md, dtype=float)
-        u = md / self.h
-        k = np.floor(u).astype(np.int64)
-        lo, hi = int(k.min()), int(k.max()) + 1
-        if lo < self._k0 or hi >= self._k0 + self._pos.shape[0]:
-            start = lo - 16 if lo < self._k0 else lo
-            nodes = np.arange(start, max(hi + 1, start + self.block)) * self.h
-            self._k0, self._pos = start, self.t.position(nodes)
-        f = (u - k)[:, None]
-        i = k - self._k0
-        return self._pos[i] * (1.0 - f) + self._pos[i + 1] * f
-
 
 def _buf(tail: tuple = (), dtype=float) -> GrowBuffer:
     return GrowBuffer(tail, dtype, capacity=256)
@@ -493,7 +258,7 @@ class WellWatcher:
         self._survey = trajectory
         self._plan = plan
         self.trajectory = extend_with_plan(trajectory, plan)
-        self._pathcache = _PathCache(self.trajectory)
+        self._pathcache = PathCache(self.trajectory)
         self._plan_end = float(self.trajectory.md_max_m) if plan is not None else None
         ref_cols = {str(c).upper(): c for c in tl.columns}
         names, weights, ref = [], [], []
@@ -564,7 +329,7 @@ class WellWatcher:
             self._flush([], evaluate=False)
         self._survey = trajectory
         self.trajectory = extend_with_plan(trajectory, self._plan)
-        self._pathcache = _PathCache(self.trajectory)
+        self._pathcache = PathCache(self.trajectory)
         if self._plan is not None:
             self._plan_end = float(self.trajectory.md_max_m)
         if self._n:
@@ -1040,8 +805,8 @@ class WellWatcher:
         elev = self.trajectory.ref_elevation_m
         rows = []
         for name, sk in zip(self.column.names, self.column.s_m):
-            md = _first_crossing(grid, s_path, float(sk))
-            md_nc = _first_crossing(grid, s_path - offset, float(sk))
+            md = first_crossing(grid, s_path, float(sk))
+            md_nc = first_crossing(grid, s_path - offset, float(sk))
             if math.isnan(md) and not (ahead != 0 and np.sign(sk - st.s_m) == ahead):
                 continue                       # behind the bit and not met again
             if math.isnan(md):
@@ -1164,16 +929,3 @@ class WellWatcher:
     def _notice(self, kind: str, message: str) -> WatchEvent:
         bit = self._last_md if math.isfinite(self._last_md) else math.nan
         return WatchEvent("notice", bit, notice=kind, message=message)
-
-
-def _first_crossing(grid: np.ndarray, s: np.ndarray, target: float) -> float:
-    """First MD along ``grid`` where ``s`` reaches ``target`` (linear between nodes), or NaN."""
-    d = s - target
-    if d[0] == 0.0:
-        return float(grid[0])
-    hit = np.flatnonzero(np.sign(d[1:]) != np.sign(d[0]))
-    if hit.size == 0:
-        return math.nan
-    k = int(hit[0])
-    f = d[k] / (d[k] - d[k + 1]) if d[k] != d[k + 1] else 0.0
-    return float(grid[k] + f * (grid[k + 1] - grid[k]))
