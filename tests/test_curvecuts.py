@@ -22,7 +22,7 @@ from wellfault.curvecuts import (
     parse_curve_spec,
 )
 from wellfault.dip import BedDip
-from wellfault.errors import InputError
+from wellfault.errors import InputError, WellfaultWarning
 from wellfault.forward import Beds, PlanarFault, simulate_well, synthetic_column
 from wellfault.measure import FaultAssumptions, measure_cut
 from wellfault.trajectory import Trajectory
@@ -274,7 +274,9 @@ def test_a_gap_in_the_log_is_bridged_not_read_as_a_fault(gap):
     the whole gap's strat in one row and it reads a jump there (the defect this guards)."""
     col, syn = _model()
     well = _with_gap(syn.well, *gap)
-    res = find_cuts_from_curves(well, col, syn.trajectory)
+    with pytest.warns(WellfaultWarning, match=r"1 depth gap\(s\) in the log .* bridged with null "
+                      "samples"):
+        res = find_cuts_from_curves(well, col, syn.trajectory)
     (cut,) = res.cuts
     assert abs(cut.md_m - syn.cuts.iloc[0].md_m) < 0.5
     assert cut.delta_s_m == pytest.approx(syn.cuts.iloc[0].delta_s_m, abs=0.5)
@@ -290,7 +292,8 @@ def test_a_cut_inside_a_gap_is_bracketed_by_the_gap():
     from the last logged sample above the gap, and its size is still measured."""
     col, syn = _model()
     well = _with_gap(syn.well, 1095.0, 1106.0)
-    (cut,) = find_cuts_from_curves(well, col, syn.trajectory).cuts
+    with pytest.warns(WellfaultWarning, match="bridged with null samples"):
+        (cut,) = find_cuts_from_curves(well, col, syn.trajectory).cuts
     md = well.curves.index.to_numpy()
     assert cut.md_m == pytest.approx(md[md > 1106.0][0])
     assert cut.md_top_m <= md[md < 1095.0][-1] and cut.md_base_m >= cut.md_m

@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -23,7 +24,7 @@ import pandas as pd
 
 from .column import ReferenceColumn
 from .dip import BedDip
-from .errors import AlignmentError, InputError
+from .errors import AlignmentError, InputError, WellfaultWarning
 from .measure import FaultAssumptions, measure_cut
 from .results import FaultCut
 
@@ -240,7 +241,20 @@ def _inputs(well, column, trajectory, bed_dip, settings, picks) -> _Inputs:
                              "evidence needs a logged interval")
     if np.all(np.isnan(x)):
         raise InputError(f"well {well.name!r}: curves {list(names)} are null everywhere")
+    n_logged = md.size
     md, x, real = _bridge_gaps(md, x, float(getattr(settings, "gap_m", 2.0)))
+    if md.size > n_logged:
+        logged = md[real]
+        d = np.diff(logged)
+        big = np.flatnonzero(d > max(settings.gap_m, 5.0 * float(np.median(d))))
+        u = well.depth_unit
+        first = f"{logged[big[0]] / u.metres:g}-{logged[big[0] + 1] / u.metres:g} {u.suffix}"
+        warnings.warn(
+            f"{well.source if well.source != '<memory>' else 'well ' + repr(well.name)}: "
+            f"{big.size} depth gap(s) in the log (the first at MD {first}): bridged with null "
+            "samples at the usual step for the curve alignment; a cut inside a gap is "
+            "reported at the first logged sample below it, bracketed by the gap",
+            WellfaultWarning, stacklevel=3)
     step = predicted_steps(md, trajectory, bed_dip, picks) / ds
     return _Inputs(x, ref, weights, names, md, step, ds, s0, real)
 
