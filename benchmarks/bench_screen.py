@@ -30,6 +30,7 @@ import argparse
 import json
 import os
 import resource
+import shutil
 import subprocess
 import sys
 import tempfile
@@ -144,6 +145,7 @@ def run_one(args) -> dict:
         res = screen_wells(field["manifest"], field["column"], workers=args.workers,
                            client=client, progress=False, out_dir=out)
         secs = time.perf_counter() - t0
+        shutil.rmtree(out, ignore_errors=True)
         main_cpu = time.process_time() - cpu0
         cpu = main_cpu + sum(sampler.cpu.values()) - kids0
         if client is not None:
@@ -281,6 +283,13 @@ def main() -> None:
         print(json.dumps(make_field(Path(args.folder), args.make)))
         return
     root = Path(tempfile.mkdtemp(prefix="bench-screen-"))
+    try:
+        _run_all(args, root)
+    finally:
+        shutil.rmtree(root, ignore_errors=True)      # the drawn fields (GBs at 100,000 wells)
+
+
+def _run_all(args, root: Path) -> None:
     rows = []
     print(f"cores: {os.cpu_count()}; fields in {root}", flush=True)
     one, two = calibrate()
