@@ -147,17 +147,18 @@ def gap_fillers(md_above: float, md_below: float, nominal_m: float, gap_m: float
 
 
 def _bridge_gaps(md: np.ndarray, x: np.ndarray, gap_m: float
-                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(md, x, real) with the log's depth gaps bridged by null samples (:func:`gap_fillers`);
-    ``real`` marks the samples of the log."""
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, list[tuple[float, float]]]:
+    """(md, x, real, gaps) with the log's depth gaps bridged by null samples
+    (:func:`gap_fillers`); ``real`` marks the samples of the log, ``gaps`` lists the MDs
+    either side of each gap bridged."""
     real = np.ones(md.size, bool)
     if md.size < 3 or not math.isfinite(gap_m):
-        return md, x, real
+        return md, x, real, []
     d = np.diff(md)
     nominal = float(np.median(d))
     big = np.flatnonzero(d > max(gap_m, 5.0 * nominal))
     if big.size == 0:
-        return md, x, real
+        return md, x, real, []
     parts_md, parts_x, parts_r, start = [], [], [], 0
     for i in big:
         fill = gap_fillers(md[i], md[i + 1], nominal, gap_m)
@@ -168,7 +169,8 @@ def _bridge_gaps(md: np.ndarray, x: np.ndarray, gap_m: float
     parts_md.append(md[start:])
     parts_x.append(x[start:])
     parts_r.append(real[start:])
-    return np.concatenate(parts_md), np.concatenate(parts_x), np.concatenate(parts_r)
+    return (np.concatenate(parts_md), np.concatenate(parts_x), np.concatenate(parts_r),
+            [(float(md[i]), float(md[i + 1])) for i in big])
 
 
 def predicted_steps(md_m: np.ndarray, trajectory, bed_dip: BedDip, picks=None) -> np.ndarray:
@@ -241,17 +243,13 @@ def _inputs(well, column, trajectory, bed_dip, settings, picks) -> _Inputs:
                              "evidence needs a logged interval")
     if np.all(np.isnan(x)):
         raise InputError(f"well {well.name!r}: curves {list(names)} are null everywhere")
-    n_logged = md.size
-    md, x, real = _bridge_gaps(md, x, float(getattr(settings, "gap_m", 2.0)))
-    if md.size > n_logged:
-        logged = md[real]
-        d = np.diff(logged)
-        big = np.flatnonzero(d > max(settings.gap_m, 5.0 * float(np.median(d))))
+    md, x, real, gaps = _bridge_gaps(md, x, float(settings.gap_m))
+    if gaps:
         u = well.depth_unit
-        first = f"{logged[big[0]] / u.metres:g}-{logged[big[0] + 1] / u.metres:g} {u.suffix}"
+        first = f"{gaps[0][0] / u.metres:g}-{gaps[0][1] / u.metres:g} {u.suffix}"
         warnings.warn(
             f"{well.source if well.source != '<memory>' else 'well ' + repr(well.name)}: "
-            f"{big.size} depth gap(s) in the log (the first at MD {first}): bridged with null "
+            f"{len(gaps)} depth gap(s) in the log (the first at MD {first}): bridged with null "
             "samples at the usual step for the curve alignment; a cut inside a gap is "
             "reported at the first logged sample below it, bracketed by the gap",
             WellfaultWarning, stacklevel=3)
