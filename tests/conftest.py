@@ -23,3 +23,22 @@ def refdata() -> Path:
     if not (d / "README.md").is_file():
         pytest.skip(f"real reference wells not found at {d} (set WELLFAULT_REFERENCE_DATA)")
     return d
+
+
+def load_manifest_well(manifest, name: str):
+    """(well, trajectory, tops, bed dip) of one well of a field manifest (``read_manifest``
+    frame, indexed by well or not): the inputs a test runs detection on. A well without a
+    survey is vertical at its surface location."""
+    from wellfault.dip import BedDip
+    from wellfault.io import read_las, read_survey, read_tops
+    from wellfault.trajectory import Trajectory
+
+    rows = manifest if manifest.index.name == "well" else manifest.set_index("well")
+    row = rows.loc[name]
+    w = read_las(row["las"])
+    if row["survey"]:
+        traj = Trajectory.from_survey(read_survey(row["survey"]), x0_m=w.x_m, y0_m=w.y_m,
+                                      ref_elevation_m=w.ref_elevation_m)
+    else:
+        traj = Trajectory.vertical(x0_m=w.x_m, y0_m=w.y_m, ref_elevation_m=w.ref_elevation_m)
+    return w, traj, read_tops(row["tops"], well=name), BedDip.parse(row["dip"])

@@ -10,6 +10,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from conftest import load_manifest_well
 
 from wellfault.column import ReferenceColumn
 from wellfault.curvecuts import (
@@ -40,22 +41,9 @@ def _field():
 
     meta = json.loads((FIELD / "field.json").read_text(encoding="utf-8"))
     manifest = read_manifest(FIELD / "manifest.csv").set_index("well")
-    w, traj, tops, dip = _load(manifest, meta["type_well"])
+    w, traj, tops, dip = load_manifest_well(manifest, meta["type_well"])
     col = ReferenceColumn.from_type_well(w, tops, traj, (dip.dip_deg, dip.dip_azimuth_deg))
     return meta, manifest, col
-
-
-def _load(manifest, name):
-    from wellfault.io import read_las, read_survey, read_tops
-
-    row = manifest.loc[name]
-    w = read_las(row["las"])
-    if row["survey"]:
-        traj = Trajectory.from_survey(read_survey(row["survey"]), x0_m=w.x_m, y0_m=w.y_m,
-                                      ref_elevation_m=w.ref_elevation_m)
-    else:
-        traj = Trajectory.vertical(x0_m=w.x_m, y0_m=w.y_m, ref_elevation_m=w.ref_elevation_m)
-    return w, traj, read_tops(row["tops"], well=name), BedDip.parse(row["dip"])
 
 
 @needs_field
@@ -70,7 +58,7 @@ def test_demo_field_every_true_cut_found_from_the_curves_with_the_attitude_given
     truth = pd.read_csv(FIELD / "truth_cuts.csv")
     attitude = {f["name"]: (f["dip_deg"], f["dip_azimuth_deg"]) for f in meta["faults"]}
     for name in manifest.index:
-        w, traj, tops, dip = _load(manifest, name)
+        w, traj, tops, dip = load_manifest_well(manifest, name)
         t = truth[truth["well"] == name]
         fa = FaultAssumptions(fault=attitude[t["fault_name"].iloc[0]]) if len(t) else \
             FaultAssumptions()

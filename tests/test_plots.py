@@ -17,7 +17,7 @@ import sys
 import numpy as np
 import pandas as pd
 import pytest
-from conftest import REPO_ROOT
+from conftest import REPO_ROOT, load_manifest_well
 
 pytest.importorskip("matplotlib", reason="the figures need matplotlib")
 
@@ -39,25 +39,10 @@ def demo_field():
     meta = json.loads((FIELD / "field.json").read_text(encoding="utf-8"))
     col = ReferenceColumn.from_table(read_column_table(FIELD / meta["column_file"]))
     manifest = read_manifest(FIELD / "manifest.csv")
-    w, traj, tops, dip = _load(manifest, meta["type_well"])
+    w, traj, tops, dip = load_manifest_well(manifest, meta["type_well"])
     type_col = ReferenceColumn.from_type_well(w, tops, traj, (dip.dip_deg, dip.dip_azimuth_deg))
     cuts, _, _ = detect_field(FIELD)
     return meta, col.with_type_log(type_col.type_log), manifest, cuts
-
-
-def _load(manifest, name):
-    from wellfault.dip import BedDip
-    from wellfault.io import read_las, read_survey, read_tops
-    from wellfault.trajectory import Trajectory
-
-    row = manifest.set_index("well").loc[name]
-    w = read_las(row["las"])
-    if row["survey"]:
-        traj = Trajectory.from_survey(read_survey(row["survey"]), x0_m=w.x_m, y0_m=w.y_m,
-                                      ref_elevation_m=w.ref_elevation_m)
-    else:
-        traj = Trajectory.vertical(x0_m=w.x_m, y0_m=w.y_m, ref_elevation_m=w.ref_elevation_m)
-    return w, traj, read_tops(row["tops"], well=name), BedDip.parse(row["dip"])
 
 
 @functools.lru_cache(maxsize=None)
@@ -67,7 +52,7 @@ def demo_well(name):
     from wellfault.detect import find_fault_cuts
 
     meta, col, manifest, _ = demo_field()
-    w, traj, tops, dip = _load(manifest, name)
+    w, traj, tops, dip = load_manifest_well(manifest, name)
     cuts = find_fault_cuts(w, col, tops=tops, trajectory=traj, bed_dip=dip,
                            planes=field_planes(meta))
     track = track_from_tops(tops, col, traj, dip, cuts, md_m=w.curves.index.to_numpy()[::3],

@@ -38,6 +38,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import InputError, UnitError, WellfaultError
+from .io.tables import split_unit_suffix
 from .units import DepthUnit, parse_depth_unit
 
 __all__ = ["FeedRows", "LogLineParser", "GrowingFile", "LineStream", "COMMON_NULLS"]
@@ -157,7 +158,7 @@ class LogLineParser:
         low = [" ".join(c.lower().split()) for c in cells]
         depth_k, unit_text = None, None
         for k, name in enumerate(low):
-            base, unit = _split_unit(name)
+            base, unit = split_unit_suffix(name, angles=False)
             if base in _DEPTH_NAMES:
                 depth_k, unit_text = k, unit
                 break
@@ -171,7 +172,7 @@ class LogLineParser:
             self._order = None
         self.depth_unit = self._resolve_unit(unit_text)
         self._width = len(cells)
-        self._select([_split_unit(c)[0] for c in cells[1:]], offset=1)
+        self._select([split_unit_suffix(c, angles=False)[0] for c in cells[1:]], offset=1)
 
     def _resolve_unit(self, unit_text: str | None) -> DepthUnit:
         if unit_text is None:
@@ -294,23 +295,6 @@ class LogLineParser:
 
 def _split(line: str, delim: str | None) -> list[str]:
     return line.split() if delim is None else [c.strip() for c in line.split(delim)]
-
-
-def _split_unit(name: str) -> tuple[str, str | None]:
-    """``"md_ft"`` → ("md", "ft"); ``"depth [m]"`` → ("depth", "m"); ``"gr"`` → ("gr", None).
-    """
-    m = re.fullmatch(r"(.+?)\s*[\(\[]\s*(.*?)\s*[\)\]]", name)
-    if m:
-        return m.group(1).strip(), m.group(2)
-    for sep in ("_", " "):
-        if sep in name:
-            base, suffix = name.rsplit(sep, 1)
-            try:
-                parse_depth_unit(suffix)
-            except UnitError:
-                continue
-            return base.strip(), suffix
-    return name, None
 
 
 def _section_body(text: str, letter: str) -> list[str]:

@@ -189,19 +189,10 @@ def random_scenario(
             fault_kinds.append(fk)
 
     factors = rng.uniform(1.0 - thickness_variation, 1.0 + thickness_variation, size=len(column))
-    names = list(column.names)
-    unpicked = [n for n in names if rng.random() < unpicked_fraction]
-    gain = float(rng.uniform(*gain_range))
-    offset = float(rng.uniform(*offset_range))
-    syn = simulate_well(
-        column, beds, faults, traj, md_top_m=md_top, md_base_m=md_base, md_step_m=md_step_m,
-        curves=curves, thickness_factors=factors, noise_std=noise_std, gain=gain,
-        offset=offset, unpicked=unpicked, pick_noise_m=pick_noise_m, seed=seed,
-        name=f"S{seed:04d}",
-    )
-    return Scenario(seed=seed, kind=kind, synthetic=syn, column=column,
-                    bed_dip=BedDip.constant(dip, dip_azi), faults=faults,
-                    fault_kinds=fault_kinds)
+    return _log_well(rng, seed, kind, column, beds, faults, fault_kinds, traj, md_top, md_base,
+                     factors, dip, dip_azi, unpicked_fraction=unpicked_fraction,
+                     gain_range=gain_range, offset_range=offset_range, md_step_m=md_step_m,
+                     curves=curves, noise_std=noise_std, pick_noise_m=pick_noise_m)
 
 
 def _reference_s(md: np.ndarray, traj: Trajectory, beds: Beds, faults: list[PlanarFault],
@@ -246,6 +237,25 @@ def _draw_faults(rng, traj, md_top, md_base, n_faults, throw_range_m, gap_m=None
         faults.append(PlanarFault.dip_slip(fdip, fazi, point, throw, kind=fk))
         kinds.append(fk)
     return faults, kinds
+
+
+def _log_well(rng, seed, kind, column, beds, faults, fault_kinds, traj, md_top, md_base,
+              factors, dip, dip_azi, *, unpicked_fraction, gain_range, offset_range, md_step_m,
+              curves, noise_std, pick_noise_m) -> Scenario:
+    """Draw the unpicked surfaces and the tool's gain and offset (in this order, so a seed
+    keeps its scenario), then log the well through the model."""
+    unpicked = [n for n in column.names if rng.random() < unpicked_fraction]
+    gain = float(rng.uniform(*gain_range))
+    offset = float(rng.uniform(*offset_range))
+    syn = simulate_well(
+        column, beds, faults, traj, md_top_m=md_top, md_base_m=md_base, md_step_m=md_step_m,
+        curves=curves, thickness_factors=factors, noise_std=noise_std, gain=gain,
+        offset=offset, unpicked=unpicked, pick_noise_m=pick_noise_m, seed=seed,
+        name=f"S{seed:04d}",
+    )
+    return Scenario(seed=seed, kind=kind, synthetic=syn, column=column,
+                    bed_dip=BedDip.constant(dip, dip_azi), faults=faults,
+                    fault_kinds=fault_kinds)
 
 
 def _inside_scenario(seed, column, *, kinds, max_faults, max_dip_deg, throw_range_m,
@@ -310,19 +320,10 @@ def _inside_scenario(seed, column, *, kinds, max_faults, max_dip_deg, throw_rang
         run = _longest_run((s_ref > lo_s) & (s_ref < hi_s))
         if run is not None and run[1] > run[0]:
             md_top, md_base = float(grid[run[0]]), float(grid[run[1]])
-    names = list(column.names)
-    unpicked = [n for n in names if rng.random() < unpicked_fraction]
-    gain = float(rng.uniform(*gain_range))
-    offset = float(rng.uniform(*offset_range))
-    syn = simulate_well(
-        column, beds, faults, traj, md_top_m=md_top, md_base_m=md_base, md_step_m=md_step_m,
-        curves=curves, thickness_factors=factors, noise_std=noise_std, gain=gain,
-        offset=offset, unpicked=unpicked, pick_noise_m=pick_noise_m, seed=seed,
-        name=f"S{seed:04d}",
-    )
-    return Scenario(seed=seed, kind=kind, synthetic=syn, column=column,
-                    bed_dip=BedDip.constant(dip, dip_azi), faults=faults,
-                    fault_kinds=fault_kinds)
+    return _log_well(rng, seed, kind, column, beds, faults, fault_kinds, traj, md_top, md_base,
+                     factors, dip, dip_azi, unpicked_fraction=unpicked_fraction,
+                     gain_range=gain_range, offset_range=offset_range, md_step_m=md_step_m,
+                     curves=curves, noise_std=noise_std, pick_noise_m=pick_noise_m)
 
 
 # ----------------------------------------------------------------- type logs from real curves

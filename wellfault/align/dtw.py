@@ -71,12 +71,9 @@ def _dtw(a, b):
     return D[n, m], path[:k][::-1].copy()
 
 
-def dtw_baseline(a: np.ndarray, b: np.ndarray) -> DTWResult:
-    """Monotone DTW of sequence ``a`` (N,) or (N, C) against ``b`` (M,) or (M, C).
-
-    >>> dtw_baseline([1, 2, 3], [1, 2, 2, 3]).distance
-    0.0
-    """
+def _as_pair(a, b) -> tuple[np.ndarray, np.ndarray]:
+    """Two sequences as (n, C) and (m, C) float arrays (1-D: one curve); refused when empty or
+    when their curve counts differ."""
     x = np.asarray(a, dtype=float)
     y = np.asarray(b, dtype=float)
     x = x[:, None] if x.ndim == 1 else x
@@ -84,6 +81,16 @@ def dtw_baseline(a: np.ndarray, b: np.ndarray) -> DTWResult:
     if x.ndim != 2 or y.ndim != 2 or x.shape[1] != y.shape[1] or len(x) == 0 or len(y) == 0:
         raise input_error("DTW needs two non-empty sequences with the same number of curves",
                           value=(x.shape, y.shape))
+    return x, y
+
+
+def dtw_baseline(a: np.ndarray, b: np.ndarray) -> DTWResult:
+    """Monotone DTW of sequence ``a`` (N,) or (N, C) against ``b`` (M,) or (M, C).
+
+    >>> dtw_baseline([1, 2, 3], [1, 2, 2, 3]).distance
+    0.0
+    """
+    x, y = _as_pair(a, b)
     if np.isnan(x).any() or np.isnan(y).any():
         raise input_error("DTW baseline does not take nulls", fix="drop or fill NaN first")
     d, path = _dtw(np.ascontiguousarray(x), np.ascontiguousarray(y))
@@ -161,13 +168,7 @@ def dtw_subsequence(a: np.ndarray, b: np.ndarray, *, weights=None,
     >>> dtw_subsequence([2.0, 3.0, 4.0], [0.0, 1.0, 2.0, 3.0, 4.0, 5.0]).path[:, 1].tolist()
     [2, 3, 4]
     """
-    x = np.asarray(a, dtype=float)
-    y = np.asarray(b, dtype=float)
-    x = x[:, None] if x.ndim == 1 else x
-    y = y[:, None] if y.ndim == 1 else y
-    if x.ndim != 2 or y.ndim != 2 or x.shape[1] != y.shape[1] or len(x) == 0 or len(y) == 0:
-        raise input_error("DTW needs two non-empty sequences with the same number of curves",
-                          value=(x.shape, y.shape))
+    x, y = _as_pair(a, b)
     w = np.ones(x.shape[1]) if weights is None else np.asarray(weights, dtype=float)
     d, path = _dtw_open(np.ascontiguousarray(x), np.ascontiguousarray(y),
                         np.ascontiguousarray(w), float(huber_delta))

@@ -369,11 +369,12 @@ def _is_length_unit(text: str) -> bool:
     return True
 
 
-def _split_unit(name: str) -> tuple[str, str | None]:
+def split_unit_suffix(name: str, *, angles: bool = True) -> tuple[str, str | None]:
     """Split a unit off a column name.
 
     ``"md_ft"`` -> ``("md", "ft")``; ``"md [m]"`` -> ``("md", "m")``; ``"md"`` -> ``("md", None)``.
-    Only a suffix that is an exact length or angle alias counts, so ``dip_azimuth`` stays whole.
+    Only a suffix that is an exact length alias (or angle alias, with ``angles``) counts, so
+    ``dip_azimuth`` stays whole. Shared by the table readers and the live-feed CSV reader.
     """
     m = re.fullmatch(r"(.+?)\s*[\(\[]\s*(.*?)\s*[\)\]]", name)
     if m:
@@ -381,7 +382,7 @@ def _split_unit(name: str) -> tuple[str, str | None]:
     for sep in ("_", " "):
         if sep in name:
             base, suffix = name.rsplit(sep, 1)
-            if suffix in _ANGLE_UNITS or _is_length_unit(suffix):
+            if (angles and suffix in _ANGLE_UNITS) or _is_length_unit(suffix):
                 return base.strip(), suffix
     return name, None
 
@@ -391,7 +392,7 @@ def _find_column(
 ) -> tuple[str, str | None] | None:
     """First column whose base name (unit suffix removed) is in ``names``: (column, unit text)."""
     skip = set(exclude)
-    parsed = [(c, *_split_unit(c)) for c in raw.frame.columns if c not in skip]
+    parsed = [(c, *split_unit_suffix(c)) for c in raw.frame.columns if c not in skip]
     for wanted in names:
         for col, base, unit in parsed:
             if base == wanted:
