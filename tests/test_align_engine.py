@@ -49,6 +49,12 @@ def _oracle_best(rows, ref, *, w, stretch, jump, strain, kind, delta, null_misfi
     lo, hi = _plain_bounds(ref, subsample)
     e = [[_plain_misfit(rows.values[r], lo[j], hi[j], w, kind, delta, null_misfit)
           for j in range(M)] for r in range(R)]
+    return _oracle_over_costs(rows, e, stretch=stretch, jump=jump, strain=strain)
+
+
+def _oracle_over_costs(rows, e, *, stretch, jump, strain):
+    """Exhaustive minimum over every path through the cost table ``e[row][column]``."""
+    R, M = rows.n_rows, len(e[0])
     Rr = [math.floor(c + 0.5) for c in rows.centre]
     sig = list(rows.direction)
     bf = math.ceil(1 / (stretch - 1) - 1e-9)

@@ -9,7 +9,7 @@ import math
 import numpy as np
 import pytest
 
-from test_align_engine import _plain_bounds, _plain_misfit, _random_case
+from test_align_engine import _oracle_over_costs, _plain_bounds, _plain_misfit, _random_case
 from wellfault.align import (
     CONFIDENCE_COEF,
     AlignmentEngine,
@@ -38,34 +38,7 @@ def _oracle_with_margins(rows, ref, pad, off_cost, *, w, stretch, jump, strain, 
                              null_misfit)
 
     E = [[e(r, j) for j in range(Mp)] for r in range(R)]
-    Rr = [math.floor(c + 0.5) for c in rows.centre]
-    sig = list(rows.direction)
-    bf = math.ceil(1 / (stretch - 1) - 1e-9)
-    bs = math.ceil(stretch / (stretch - 1) - 1e-9)
-    best = math.inf
-
-    def rec(r, j, cost):
-        nonlocal best
-        if r == R - 1:
-            best = min(best, cost)
-            return
-        jn = j + Rr[r + 1] - Rr[r]
-        if 0 <= jn < Mp:
-            rec(r + 1, jn, cost + E[r + 1][jn])
-        for b, faster in ((bf, +1), (bs, -1)):
-            rl = r + b
-            if rl > R - 1 or any(sig[t] != sig[rl] for t in range(r + 1, rl + 1)):
-                continue
-            jl = j + Rr[rl] - Rr[r] + faster * sig[rl]
-            cells = [(t, jl - (Rr[rl] - Rr[t])) for t in range(r + 1, rl + 1)]
-            if all(0 <= c < Mp for _, c in cells):
-                rec(rl, jl, cost + strain + sum(E[t][c] for t, c in cells))
-        for jn in range(Mp):
-            rec(r + 1, jn, cost + jump + E[r + 1][jn])
-
-    for j in range(Mp):
-        rec(0, j, E[0][j])
-    return best
+    return _oracle_over_costs(rows, E, stretch=stretch, jump=jump, strain=strain)
 
 
 @pytest.mark.parametrize("seed", list(range(40)))

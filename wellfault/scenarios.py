@@ -97,6 +97,19 @@ def _logged_interval(traj: Trajectory, beds: Beds, base_s: float, td: float
     return float(md[starts[k]]), float(md[ends[k]])
 
 
+def _draw_trajectory(rng, kind: str, seed: int):
+    """A trajectory of the kind: vertical; deviated 20-55 deg; high-angle 65-85 deg (random
+    azimuth), to 9,000 m MD."""
+    if kind == "vertical":
+        inc, azi = 0.0, 0.0
+    elif kind == "deviated":
+        inc, azi = float(rng.uniform(20.0, 55.0)), float(rng.uniform(0.0, 360.0))
+    else:
+        inc, azi = float(rng.uniform(65.0, 85.0)), float(rng.uniform(0.0, 360.0))
+    return build_trajectory(kind, inclination_deg=inc, azimuth_deg=azi, td_m=9000.0,
+                            name=f"S{seed:04d}")
+
+
 def random_scenario(
     seed: int,
     column: ReferenceColumn,
@@ -150,14 +163,7 @@ def random_scenario(
     dip_azi = float(rng.uniform(0.0, 360.0))
     base_s = float(column.base_s_m)
     for _attempt in range(20):
-        if kind == "vertical":
-            inc, azi = 0.0, 0.0
-        elif kind == "deviated":
-            inc, azi = float(rng.uniform(20.0, 55.0)), float(rng.uniform(0.0, 360.0))
-        else:
-            inc, azi = float(rng.uniform(65.0, 85.0)), float(rng.uniform(0.0, 360.0))
-        traj = build_trajectory(kind, inclination_deg=inc, azimuth_deg=azi, td_m=9000.0,
-                                name=f"S{seed:04d}")
+        traj = _draw_trajectory(rng, kind, seed)
         # the column top lies 150-400 m below the kick-off point (vertically)
         top_tvd = float(rng.uniform(450.0, 700.0))
         beds = Beds.through(dip, dip_azi, (0.0, 0.0, top_tvd), 0.0)
@@ -273,14 +279,7 @@ def _inside_scenario(seed, column, *, kinds, max_faults, max_dip_deg, throw_rang
     for _attempt in range(50):
         dip = float(rng.uniform(0.0, max_dip_deg))
         dip_azi = float(rng.uniform(0.0, 360.0))
-        if kind == "vertical":
-            inc, azi = 0.0, 0.0
-        elif kind == "deviated":
-            inc, azi = float(rng.uniform(20.0, 55.0)), float(rng.uniform(0.0, 360.0))
-        else:
-            inc, azi = float(rng.uniform(65.0, 85.0)), float(rng.uniform(0.0, 360.0))
-        traj = build_trajectory(kind, inclination_deg=inc, azimuth_deg=azi, td_m=9000.0,
-                                name=f"S{seed:04d}")
+        traj = _draw_trajectory(rng, kind, seed)
         top_tvd = float(rng.uniform(450.0, 700.0))
         beds = Beds.through(dip, dip_azi, (0.0, 0.0, top_tvd), 0.0)
         md = np.arange(0.0, 9000.0, 1.0)
