@@ -181,18 +181,7 @@ def random_scenario(
     fault_kinds: list[str] = []
     if n_faults:
         # well-separated crossing points in the middle of the logged interval
-        span = md_base - md_top
-        slots = np.sort(rng.uniform(0.2, 0.8, size=n_faults))
-        if n_faults == 2 and slots[1] - slots[0] < 0.25:
-            slots = np.array([0.3, 0.7])
-        for frac in slots:
-            fk = str(rng.choice(["normal", "reverse"]))
-            fdip = float(rng.uniform(50.0, 70.0) if fk == "normal" else rng.uniform(25.0, 40.0))
-            fazi = float(rng.uniform(0.0, 360.0))
-            throw = float(rng.uniform(*throw_range_m))
-            point = traj.position(np.array([md_top + frac * span]))[0]
-            faults.append(PlanarFault.dip_slip(fdip, fazi, point, throw, kind=fk))
-            fault_kinds.append(fk)
+        faults, fault_kinds = _draw_faults(rng, traj, md_top, md_base, n_faults, throw_range_m)
 
     factors = rng.uniform(1.0 - thickness_variation, 1.0 + thickness_variation, size=len(column))
     return _log_well(rng, seed, kind, column, beds, faults, fault_kinds, traj, md_top, md_base,
@@ -226,6 +215,9 @@ def _longest_run(mask: np.ndarray) -> tuple[int, int] | None:
 
 
 def _draw_faults(rng, traj, md_top, md_base, n_faults, throw_range_m, gap_m=None):
+    """``n_faults`` planar dip-slip faults crossing the well between 20 and 80 % of the logged
+    interval (two at least a quarter of it apart, or ``gap_m`` of MD apart): normal 50-70 deg,
+    reverse 25-40 deg, any dip azimuth, throw in ``throw_range_m``."""
     span = md_base - md_top
     slots = np.sort(rng.uniform(0.2, 0.8, size=n_faults))
     if n_faults == 2 and gap_m is not None:
