@@ -195,13 +195,10 @@ class _TextPrinter:
 
 # -------------------------------------------------------------------------------- command
 def _survey(path, unit_given, facts):
-    from .io import read_survey
-    from .trajectory import Trajectory
+    from .detect import survey_trajectory
 
-    return Trajectory.from_survey(read_survey(path, depth_unit=unit_given),
-                                  x0_m=facts.x_m or 0.0, y0_m=facts.y_m or 0.0,
-                                  ref_elevation_m=facts.ref_elevation_m, name=facts.well_name,
-                                  source=str(path))
+    return survey_trajectory(path, depth_unit=unit_given, x_m=facts.x_m, y_m=facts.y_m,
+                             ref_elevation_m=facts.ref_elevation_m, name=facts.well_name)
 
 
 def _mtime(path) -> float | None:

@@ -171,6 +171,17 @@ def _or0(v):
     return 0.0 if v is None else float(v)
 
 
+def survey_trajectory(path, *, depth_unit=None, x_m=None, y_m=None, ref_elevation_m=None,
+                      name=None) -> Trajectory:
+    """The trajectory of a survey file (``read_survey``) from a well's surface location
+    (0 when unknown) and depth reference."""
+    from .io import read_survey
+
+    return Trajectory.from_survey(read_survey(path, depth_unit=depth_unit), x0_m=_or0(x_m),
+                                  y0_m=_or0(y_m), ref_elevation_m=ref_elevation_m, name=name,
+                                  source=str(path))
+
+
 def _check_dip_surfaces(bed_dip: BedDip, column: ReferenceColumn) -> None:
     """A per-surface dip table may name only surfaces of the column (a typo would silently
     leave that unit with the default dip)."""
@@ -282,7 +293,7 @@ def load_column(
     type-log curves the curve evidence needs. Given both, the type well's surfaces are used and
     the table's unconformity flags are copied onto them.
     """
-    from .io import read_column_table, read_las, read_survey, read_tops
+    from .io import read_column_table, read_las, read_tops
 
     table = read_column_table(column, depth_unit=depth_unit) if column is not None else None
     if type_well is None:
@@ -299,10 +310,8 @@ def load_column(
     ttops = read_tops(type_tops, depth_unit=depth_unit, well=tw.name)
     ttraj = None
     if type_survey is not None:
-        ttraj = Trajectory.from_survey(read_survey(type_survey, depth_unit=depth_unit),
-                                       x0_m=_or0(tw.x_m), y0_m=_or0(tw.y_m),
-                                       ref_elevation_m=tw.ref_elevation_m, name=tw.name,
-                                       source=str(type_survey))
+        ttraj = survey_trajectory(type_survey, depth_unit=depth_unit, x_m=tw.x_m, y_m=tw.y_m,
+                                  ref_elevation_m=tw.ref_elevation_m, name=tw.name)
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
     if ttraj is None:
         ttraj = Trajectory.vertical(x0_m=_or0(tw.x_m), y0_m=_or0(tw.y_m),
@@ -339,7 +348,7 @@ def detect_files(
     Curve evidence runs when a type well is given (``curves`` defaults to GR then); tops
     evidence when ``tops`` is given; both are combined.
     """
-    from .io import read_dip_table, read_las, read_survey, read_tops
+    from .io import read_dip_table, read_las, read_tops
 
     unit_given = parse_depth_unit(depth_unit) if depth_unit else None
     well = read_las(las, depth_unit=unit_given)
@@ -362,10 +371,8 @@ def detect_files(
                       type_survey=type_survey, bed_dip=bed, depth_unit=unit_given)
     traj = None
     if survey is not None:
-        traj = Trajectory.from_survey(read_survey(survey, depth_unit=unit_given),
-                                      x0_m=_or0(well.x_m), y0_m=_or0(well.y_m),
-                                      ref_elevation_m=well.ref_elevation_m, name=well.name,
-                                      source=str(survey))
+        traj = survey_trajectory(survey, depth_unit=unit_given, x_m=well.x_m, y_m=well.y_m,
+                                 ref_elevation_m=well.ref_elevation_m, name=well.name)
     tops_df = read_tops(tops, depth_unit=unit_given, well=well.name) if tops is not None else None
     settings = None
     if curves or type_well is not None:
