@@ -15,6 +15,7 @@ from . import CAUTION, __version__
 from .cli_screen import add_screen_parser
 from .cli_watch import add_watch_parser
 from .errors import WellfaultError, WellfaultWarning
+from .precision import DECIMALS_HELP, Decimals, decimals_option
 
 __all__ = ["main"]
 
@@ -65,7 +66,10 @@ def _add_detect(sub):
     p.add_argument("--depth-unit", choices=["m", "ft", "usft"],
                    help="depth unit of input files that do not state one")
     p.add_argument("--output-unit", choices=["m", "ft"],
-                   help="length unit of the cut table (default: the LAS file's unit)")
+                   help="length unit of the cut table, the summary and the report (default: "
+                        "the LAS file's unit)")
+    p.add_argument("--decimals", type=decimals_option, default=Decimals(), metavar="N|full",
+                   help=DECIMALS_HELP)
     p.add_argument("--tolerance", type=float, default=0.15, metavar="FRACTION",
                    help="relative thickness tolerance for tops (default 0.15)")
     p.add_argument("--tolerance-floor", type=float, default=2.0, metavar="METRES",
@@ -87,6 +91,8 @@ def _add_survey(sub):
                    help="unit of the MD column when its name does not state it")
     p.add_argument("--output-unit", choices=["m", "ft"],
                    help="unit of the output (default: the survey's unit)")
+    p.add_argument("--decimals", type=decimals_option, default=Decimals(), metavar="N|full",
+                   help=DECIMALS_HELP)
     p.set_defaults(func=_cmd_survey)
 
 
@@ -98,6 +104,9 @@ def _add_demo(sub):
     p.add_argument("--field", metavar="DIR",
                    help="folder of the demo field (default: ./synthetic_wells if present, "
                         "else generated afresh in a temporary folder)")
+    p.add_argument("--output-unit", choices=["m", "ft"], default="m",
+                   help="length unit of the printed table (default m; the field's wells "
+                        "are logged in metres and in feet)")
     p.set_defaults(func=_cmd_demo)
 
 
@@ -116,13 +125,16 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def _write_csv(df, out):
+def _write_csv(df, out, decimals: Decimals):
+    """The table to ``out`` (or stdout), at the precision its numbers carry."""
     if out:
         from .io import write_table
 
-        write_table(df, out)
+        write_table(df, out, decimals=decimals)
     else:
-        df.to_csv(sys.stdout, index=False, float_format="%.3f")
+        from .precision import table_text
+
+        sys.stdout.write(table_text(df, decimals))
 
 
 def _cmd_survey(args) -> int:
@@ -135,23 +147,34 @@ def _cmd_survey(args) -> int:
     traj = Trajectory.from_survey(df, source=args.survey)
     unit = parse_depth_unit(args.output_unit) if args.output_unit else \
         parse_depth_unit(df.attrs.get("depth_unit", given or "m"))
-    _write_csv(traj.survey_table(unit), None)
+    _write_csv(traj.survey_table(unit), None, args.decimals)
     return EXIT_OK
 
 
-def _summarise(df, unit_suffix: str) -> str:
+def _summarise(df, unit_suffix: str, decimals: Decimals = Decimals()) -> str:
+    """One line per cut, lengths in the table's unit at the table's precision."""
+    from .precision import column_decimals
+
     if len(df) == 0:
         return "no fault cut found"
-    lines = [f"{len(df)} fault cut(s):"]
+
+    def v(d, stem):
+        name = f"{stem}_{unit_suffix}"
+        nd = column_decimals(name, decimals)
+        x = float(d[name])
+        return str(x) if nd is None else f"{x:.{nd}f}"
+
+    nc = column_decimals("confidence", decimals)
+    lines = [f"{len(df)} fault cut(s), lengths in {unit_suffix}:"]
     for r in df.itertuples(index=False):
         d = r._asdict()
+        conf = float(d["confidence"])
         lines.append(
-            f"  {d['well']}: {d['section']} section at MD {d['md_' + unit_suffix]:.1f} "
-            f"[{d['md_top_' + unit_suffix]:.1f}-{d['md_base_' + unit_suffix]:.1f}] "
-            f"{unit_suffix}, {d['tst_' + unit_suffix]:.1f} {unit_suffix} TST, "
-            f"VS {d['vertical_separation_' + unit_suffix]:.1f} {unit_suffix}, "
-            f"{d['fault_type']} fault ({d['crossing']}), between {d['surface_above']} and "
-            f"{d['surface_below']}, confidence {d['confidence']:.2f}")
+            f"  {d['well']}: {d['section']} section at MD {v(d, 'md')} "
+            f"[{v(d, 'md_top')}-{v(d, 'md_base')}] {unit_suffix}, {v(d, 'tst')} {unit_suffix} "
+            f"TST, VS {v(d, 'vertical_separation')} {unit_suffix}, {d['fault_type']} fault "
+            f"({d['crossing']}), between {d['surface_above']} and {d['surface_below']}, "
+            f"confidence {conf if nc is None else f'{conf:.{nc}f}'}")
     return "\n".join(lines)
 
 
@@ -166,16 +189,17 @@ def _cmd_detect(args) -> int:
         curves=args.curve, depth_unit=args.depth_unit, output_unit=args.output_unit,
         tolerance=TopsTolerance(args.tolerance, args.tolerance_floor))
     df = result.cuts
-    _write_csv(df, args.out)
+    _write_csv(df, args.out, args.decimals)
+    suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
     if args.report:
         from .report import write_well_report
 
         write_well_report(args.report, well=result.well, column=result.column, cuts_df=df,
                           trajectory=result.trajectory, bed_dip=result.bed_dip,
-                          tops=result.tops, track=result.track, tolerance=result.tolerance)
+                          tops=result.tops, track=result.track, tolerance=result.tolerance,
+                          unit=suffix, decimals=args.decimals)
         print(f"report written to {args.report}", file=sys.stderr)
-    suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
-    print(_summarise(df, suffix), file=sys.stderr)
+    print(_summarise(df, suffix, args.decimals), file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK
 
@@ -184,7 +208,7 @@ def _cmd_demo(args) -> int:
     from .demo import run_demo
 
     field = Path(args.field) if args.field else None
-    print(run_demo(field), file=sys.stdout)
+    print(run_demo(field, unit=args.output_unit), file=sys.stdout)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK
 

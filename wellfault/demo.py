@@ -70,17 +70,24 @@ def detect_field(folder: Path) -> tuple[pd.DataFrame, pd.DataFrame, dict]:
     return cuts, truth, meta
 
 
-def run_demo(folder: Path | None = None) -> str:
-    """Detect the cuts of the demo field and return a printable comparison with the truth."""
+def run_demo(folder: Path | None = None, unit: str = "m") -> str:
+    """Detect the cuts of the demo field and return a printable comparison with the truth,
+    lengths in ``unit`` (``"m"`` or ``"ft"``) at the precision they carry."""
+    from .precision import Decimals
+    from .units import parse_depth_unit
+
+    u = parse_depth_unit(unit)
+    per_m, sx, nd = 1.0 / u.metres, u.suffix, Decimals().for_length(u)
     folder = locate_field(folder)
     cuts, truth, meta = detect_field(folder)
+    logged = sorted({w.get("depth_unit", "m") for w in meta["wells"]})
     lines = [f"{meta['field']} — invented demo field in {folder}",
              f"{len(meta['wells'])} wells, beds {meta['bed_dip']['text']}, fault model: "
              + ", ".join(f"{f['name']} {f['attitude']}" for f in meta["faults"]),
              "",
-             f"{'well':<7} {'found: MD [bracket] m':<30} {'section':<9} {'type':<8} "
-             f"{'TST m':>6} {'VS m':>6} {'crossing':<25}| {'truth: MD m':>11} {'section':<9} "
-             f"{'type':<8} {'TST m':>6}"]
+             f"{'well':<7} {f'found: MD [bracket] {sx}':<30} {'section':<9} {'type':<8} "
+             f"{f'TST {sx}':>8} {f'VS {sx}':>8} {'crossing':<25}| {f'truth: MD {sx}':>12} "
+             f"{'section':<9} {'type':<8} {f'TST {sx}':>8}"]
     wells = [w["name"] for w in meta["wells"]]
     found_total = right = 0
     for name in wells:
@@ -88,22 +95,23 @@ def run_demo(folder: Path | None = None) -> str:
         t = truth[truth["well"] == name]
         n = max(len(c), len(t))
         if n == 0:
-            lines.append(f"{name:<7} {'no cut':<30} {'':<9} {'':<8} {'':>6} {'':>6} {'':<25}| "
-                         f"{'no cut':>11}")
+            lines.append(f"{name:<7} {'no cut':<30} {'':<9} {'':<8} {'':>8} {'':>8} {'':<25}| "
+                         f"{'no cut':>12}")
             continue
         for k in range(n):
             left = right_txt = ""
             if k < len(c):
                 r = c.iloc[k]
-                left = (f"{r.md_m:7.1f} [{r.md_top_m:.1f}-{r.md_base_m:.1f}]".ljust(30)
-                        + f" {r.section:<9} {r.fault_type:<8} {r.tst_m:6.1f} "
-                        f"{r.vertical_separation_m:6.1f} {r.crossing:<25}")
+                md, top, base = (v * per_m for v in (r.md_m, r.md_top_m, r.md_base_m))
+                left = (f"{md:.{nd}f} [{top:.{nd}f}-{base:.{nd}f}]".ljust(30)
+                        + f" {r.section:<9} {r.fault_type:<8} {r.tst_m * per_m:8.{nd}f} "
+                        f"{r.vertical_separation_m * per_m:8.{nd}f} {r.crossing:<25}")
             else:
-                left = f"{'(not found)':<30} {'':<9} {'':<8} {'':>6} {'':>6} {'':<25}"
+                left = f"{'(not found)':<30} {'':<9} {'':<8} {'':>8} {'':>8} {'':<25}"
             if k < len(t):
                 tr = t.iloc[k]
-                right_txt = (f"{tr.md_m:11.1f} {tr.section:<9} {tr.fault_type:<8} "
-                             f"{abs(tr.delta_s_m):6.1f}")
+                right_txt = (f"{tr.md_m * per_m:12.{nd}f} {tr.section:<9} {tr.fault_type:<8} "
+                             f"{abs(tr.delta_s_m) * per_m:8.{nd}f}")
                 hit = c[(c["md_top_m"] <= tr.md_m) & (tr.md_m <= c["md_base_m"])] if len(c) \
                     else c
                 if len(hit):
@@ -111,13 +119,15 @@ def run_demo(folder: Path | None = None) -> str:
                     h = hit.iloc[0]
                     right += int(h.section == tr.section and h.fault_type == tr.fault_type)
             else:
-                right_txt = f"{'(no true cut)':>11}"
+                right_txt = f"{'(no true cut)':>12}"
             lines.append(f"{(name if k == 0 else ''):<7} {left}| {right_txt}")
     lines += ["",
               f"true cuts found: {found_total} of {len(truth)}; section and fault type right: "
               f"{right} of {found_total}; cuts reported in all: {len(cuts)}",
               "Evidence used: formation tops against the reference column, with the field's "
-              "mapped fault planes for the crossing direction. All lengths in metres."]
+              "mapped fault planes for the crossing direction.",
+              f"All lengths in {sx} (wells logged in {' and '.join(logged)}; "
+              f"--output-unit {'ft' if sx == 'm' else 'm'} for {'feet' if sx == 'm' else 'metres'})."]
     return "\n".join(lines)
 
 

@@ -240,6 +240,7 @@ def make_demo_field(folder: str | Path, *, seed: int = DEFAULT_SEED) -> dict[str
         Paths written, by name.
     """
     from .io import write_las, write_table
+    from .precision import FULL  # the field's input files, written as drawn
 
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -257,7 +258,7 @@ def make_demo_field(folder: str | Path, *, seed: int = DEFAULT_SEED) -> dict[str
         if st is not None:
             survey_name = plan.name.replace("-", "_") + "_survey.csv"
             out = st.rename(columns={"md": f"md_{u.suffix}", "inc": "inc_deg", "azi": "azi_deg"})
-            written[survey_name] = write_table(out, folder / survey_name)
+            written[survey_name] = write_table(out, folder / survey_name, decimals=FULL)
         tops_parts.append(syn.tops)
         truth_parts.append(syn.cuts.assign(depth_unit=u.value))
         manifest_rows.append({
@@ -278,20 +279,21 @@ def make_demo_field(folder: str | Path, *, seed: int = DEFAULT_SEED) -> dict[str
     tops = pd.concat(tops_parts, ignore_index=True)
     tops_out = pd.DataFrame({"well": tops["well"], "surface": tops["surface"],
                              "md_m": np.round(tops["md_m"].to_numpy(), 2)})
-    written["tops.csv"] = write_table(tops_out, folder / "tops.csv")
+    written["tops.csv"] = write_table(tops_out, folder / "tops.csv", decimals=FULL)
 
     col = column.to_frame()
     col_out = pd.DataFrame({"surface": col["surface"], "thickness_m": col["thickness_m"].round(2),
                             "unconformity": np.where(col["unconformity"], "yes", "no")})
-    written["column.csv"] = write_table(col_out, folder / "column.csv")
+    written["column.csv"] = write_table(col_out, folder / "column.csv", decimals=FULL)
 
     truth = pd.concat([c for c in truth_parts if len(c)], ignore_index=True)
     float_cols = [c for c in truth.columns if c.endswith("_m")]
     truth[float_cols] = truth[float_cols].astype(float).round(3)
     truth["r"] = truth["r"].astype(float).round(5)
-    written["truth_cuts.csv"] = write_table(truth, folder / "truth_cuts.csv")
+    written["truth_cuts.csv"] = write_table(truth, folder / "truth_cuts.csv", decimals=FULL)
 
-    written["manifest.csv"] = write_table(pd.DataFrame(manifest_rows), folder / "manifest.csv")
+    written["manifest.csv"] = write_table(pd.DataFrame(manifest_rows), folder / "manifest.csv",
+                                          decimals=FULL)
 
     x0, y0 = ORIGIN_XY
     meta = {

@@ -72,6 +72,7 @@ from .errors import InputError, WellfaultError, WellfaultWarning
 from .faultmap import BRACKET_COLUMNS, FaultFitOptions, FaultMap, fit_faults
 from .measure import FaultPlane
 from .neighbours import NeighbourThickness, thickness_samples
+from .precision import Decimals, round_table
 from .results import FaultCut, cuts_to_frame
 from .topcuts import TopsTolerance
 from .units import DepthUnit, parse_depth_unit
@@ -83,7 +84,7 @@ __all__ = ["screen_wells", "ScreenResult", "WellTask", "ERROR_COLUMNS", "WELL_CO
 ERROR_COLUMNS = ("well", "file", "error_type", "message")
 #: Columns of the well table.
 WELL_COLUMNS = ("well", "status", "checked_by", "cuts_found", "seconds", "n_picks",
-                "thickness_source", "warnings")
+                "depth_unit", "thickness_source", "warnings")
 #: Default tolerance of neighbour-aware tops evidence: 6 % of the local interval + 2 m.
 NEIGHBOUR_TOLERANCE = TopsTolerance(relative=0.06, floor_m=2.0)
 #: Files written into ``out_dir`` (``.csv`` or ``.parquet``).
@@ -177,11 +178,15 @@ class ScreenResult:
             f"unconformity ({int(kinds.get('possible unconformity', 0))} level(s))",
             f"thickness: {i.get('thickness_mode', '?')}",
         ]
+        if i.get("unit_note"):
+            lines.append(i["unit_note"])
         return "\n".join(lines)
 
-    def write(self, out_dir: str | os.PathLike, fmt: str = "csv") -> dict[str, Path]:
-        """Write the tables (:data:`OUTPUT_FILES`) into ``out_dir``, each replaced atomically."""
-        return _write_tables(self, Path(out_dir), fmt)
+    def write(self, out_dir: str | os.PathLike, fmt: str = "csv",
+              decimals: Decimals = Decimals()) -> dict[str, Path]:
+        """Write the tables (:data:`OUTPUT_FILES`) into ``out_dir``, each replaced atomically,
+        numbers at the precision they carry (:mod:`wellfault.precision`)."""
+        return _write_tables(self, Path(out_dir), fmt, decimals)
 
 
 # ------------------------------------------------------------------------------- worker side
@@ -489,6 +494,8 @@ def _run_one(cfg: _Config, kind: str, task: WellTask, extra) -> dict:
         try:
             inp = _load(cfg, task, stage)
             out["n"] = len(inp.picks)
+            if inp.well is not None:
+                out["u"] = inp.well.depth_unit.value
             if kind == "thickness":
                 idx, _md, drilled, mid = _pick_geometry(cfg, inp)
                 out["iv"] = [idx[:-1].tolist(), idx[1:].tolist(), drilled.tolist(),
@@ -943,7 +950,8 @@ def _convert_lengths(df: pd.DataFrame, unit: DepthUnit) -> pd.DataFrame:
     return out.rename(columns=ren)
 
 
-def _write_tables(result: ScreenResult, folder: Path, fmt: str) -> dict[str, Path]:
+def _write_tables(result: ScreenResult, folder: Path, fmt: str,
+                  decimals: Decimals = Decimals()) -> dict[str, Path]:
     from .io import write_table
 
     fmt = str(fmt).lower()
@@ -955,7 +963,7 @@ def _write_tables(result: ScreenResult, folder: Path, fmt: str) -> dict[str, Pat
         df = getattr(result, name)
         path = folder / f"{name}.{fmt}"
         if fmt == "csv":
-            write_table(df, path)
+            write_table(df, path, decimals=decimals)
         else:
             try:
                 import pyarrow  # noqa: F401
@@ -963,7 +971,7 @@ def _write_tables(result: ScreenResult, folder: Path, fmt: str) -> dict[str, Pat
                 raise InputError("Parquet output needs pyarrow; install it (pip install "
                                  "'wellfault[parquet]') or write CSV") from None
             tmp = path.with_name(f".{path.name}.tmp")
-            df.to_parquet(tmp, index=False)
+            round_table(df, decimals).to_parquet(tmp, index=False)
             os.replace(tmp, path)
         written[name] = path
     return written
@@ -987,7 +995,7 @@ def screen_wells(
     fit: bool = True,
     fault_options: FaultFitOptions = FaultFitOptions(),
     depth_unit: str | None = None,
-    unit: DepthUnit | str = "m",
+    unit: DepthUnit | str | None = None,
     workers: int | None = None,
     client=None,
     chunk_size: int | None = None,
@@ -995,6 +1003,7 @@ def screen_wells(
     out_dir: str | os.PathLike | None = None,
     fmt: str = "csv",
     resume: bool = False,
+    decimals: Decimals = Decimals(),
 ) -> ScreenResult:
     """Screen every well of a field for fault cuts and assemble the cuts into faults.
 
@@ -1038,8 +1047,9 @@ def screen_wells(
         Settings of the fault fit (seeded: the same cuts give the same faults).
     depth_unit : str, optional
         Unit of files that state none (per-well ``depth_unit`` in the manifest wins).
-    unit : DepthUnit or str
-        Length unit of the output tables (default metres).
+    unit : DepthUnit or str, optional
+        Length unit of the output tables. Default: the wells' depth unit (of their LAS files)
+        when they all share one, metres when they mix units (``info["unit_note"]`` says so).
     workers : int, optional
         Processes of the local pool (default: all cores); 1 runs serially in this process.
     client : dask.distributed.Client, optional
@@ -1054,13 +1064,15 @@ def screen_wells(
         Format of the written tables.
     resume : bool
         Skip the wells already finished in ``out_dir``'s checkpoint.
+    decimals : Decimals
+        Precision of the written tables (:mod:`wellfault.precision`); the returned frames keep
+        full precision.
 
     Returns
     -------
     ScreenResult
     """
     t_start = time.perf_counter()
-    out_unit = parse_depth_unit(unit)
     if resume and out_dir is None:
         raise InputError("resume needs the output folder of the run to resume (out_dir / --out)")
     if str(fmt).lower() not in ("csv", "parquet"):
@@ -1114,6 +1126,7 @@ def screen_wells(
     # per-well state, by manifest index
     seconds = np.zeros(n)
     n_picks = np.zeros(n, dtype=np.int64)
+    well_units = np.full(n, "", dtype=object)
     errors: dict[int, list] = {}
     warns: dict[int, list[str]] = defaultdict(list)
     # pass 1, per well: one (5, n) array of column index above, below, drilled TST, x, y
@@ -1127,6 +1140,7 @@ def screen_wells(
         i = int(o["i"])
         seconds[i] += float(o.get("s", 0.0))
         n_picks[i] = max(n_picks[i], int(o.get("n", 0)))
+        well_units[i] = o.get("u", well_units[i])
         for w in o.get("w", []):
             if w not in warns[i]:
                 warns[i].append(w)
@@ -1275,6 +1289,7 @@ def screen_wells(
         cuts_m["fault_fit"] = "not fitted"
         faults_m, profiles_m = FaultMap([], np.zeros(0, object), np.zeros(0, object)).tables(
             cuts_m)
+    out_unit, unit_note = _output_unit(unit, [well_units[t.index] for t in tasks])
     cuts = cuts_to_frame(records, out_unit)
     cuts["fault_id"] = cuts_m["fault_id"].to_numpy(dtype=object)
     cuts["fault_fit"] = cuts_m["fault_fit"].to_numpy(dtype=object)
@@ -1294,6 +1309,7 @@ def screen_wells(
             "well": t.well, "status": "failed" if failed else "ok", "checked_by": by,
             "cuts_found": 0 if failed else int(counts.get(i, 0)),
             "seconds": float(seconds[i]), "n_picks": int(n_picks[i]),
+            "depth_unit": well_units[i],
             "thickness_source": "" if failed else ("neighbours" if "neighbours" in by
                                                    else "column"),
             "warnings": "; ".join(warns[i]),
@@ -1304,7 +1320,8 @@ def screen_wells(
         thickness.insert(0, "well_name", [tasks[int(w)].well for w in thickness["well"]])
         thickness["surface"] = [col.names[int(u)] for u in thickness["unit"]]
     info.update({
-        "runner": runner.kind, "unit": out_unit.value, "timings": timings,
+        "runner": runner.kind, "unit": out_unit.value, "unit_note": unit_note,
+        "timings": timings,
         "seconds_total": time.perf_counter() - t_start,
         "thickness_mode": (f"neighbours (k={neighbour_k}, tolerance "
                            f"{tol_n.relative:.0%} + {tol_n.floor_m:g} m)" if tol_n
@@ -1317,8 +1334,32 @@ def screen_wells(
                           fault_profiles=_convert_lengths(profiles_m, out_unit),
                           thickness=thickness, info=info)
     if out_dir is not None:
-        result.write(out_dir, fmt)
+        result.write(out_dir, fmt, decimals)
     return result
+
+
+def _output_unit(unit, well_units) -> tuple[DepthUnit, str]:
+    """The tables' unit and a sentence saying where it comes from (``well_units``: each well's
+    LAS depth unit, '' when unknown)."""
+    counts: dict[str, int] = {}
+    for u in well_units:
+        if u:
+            key = parse_depth_unit(u).suffix
+            counts[key] = counts.get(key, 0) + 1
+    logged = ", ".join(f"{k}: {v} well{'s' if v != 1 else ''}" for k, v in sorted(counts.items()))
+    if unit is not None:
+        out = parse_depth_unit(unit)
+        why = "as chosen"
+    elif len(counts) == 1:
+        out = parse_depth_unit(next(iter(counts)))
+        why = "the wells' unit"
+    else:
+        out = DepthUnit.M
+        why = "the wells mix units" if counts else "no well's unit known"
+    text = f"lengths in {out.suffix} ({why})"
+    if len(counts) > 1:
+        text += f"; wells logged in mixed units ({logged}), converted to {out.suffix}"
+    return out, text
 
 
 def _neighbour_model(col, intervals: dict, k: int, max_distance):

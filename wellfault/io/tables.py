@@ -39,6 +39,7 @@ from ..errors import (
     WellfaultWarning,
     input_error,
 )
+from ..precision import FULL, Decimals, table_text
 from ..units import DepthUnit, parse_depth_unit
 
 __all__ = [
@@ -1035,8 +1036,12 @@ def _atomic_write_text(path: PathLike, text: str) -> Path:
 
 
 def write_table(df: pd.DataFrame, path: PathLike, *, index: bool = False,
-                float_format: str | None = None) -> Path:
+                float_format: str | None = None, decimals: Decimals = Decimals()) -> Path:
     """Write a DataFrame as UTF-8 CSV atomically (temporary file, then rename).
+
+    Numbers are written at the precision they carry (:mod:`wellfault.precision`: 0.01 m or
+    0.1 ft for lengths, 0.1 degree for angles, 2 decimals for confidences); ``df`` itself is
+    not changed.
 
     Parameters
     ----------
@@ -1047,7 +1052,10 @@ def write_table(df: pd.DataFrame, path: PathLike, *, index: bool = False,
     index : bool, default False
         Write the index as the first column.
     float_format : str, optional
-        Format for floats, e.g. ``"%.3f"``; default full precision.
+        One format for every float, e.g. ``"%.3f"``, instead of the per-column rules.
+    decimals : Decimals, optional
+        The per-column rules (:class:`wellfault.precision.Decimals`; ``precision.FULL`` writes
+        full precision).
 
     Returns
     -------
@@ -1059,7 +1067,10 @@ def write_table(df: pd.DataFrame, path: PathLike, *, index: bool = False,
     InputError
         The folder does not exist or is not writable.
     """
-    text = df.to_csv(index=index, float_format=float_format, lineterminator="\n")
+    if float_format is not None:
+        text = df.to_csv(index=index, float_format=float_format, lineterminator="\n")
+    else:
+        text = table_text(df, decimals, index=index)
     return _atomic_write_text(path, text)
 
 
@@ -1068,7 +1079,8 @@ def _unit_of(depth_unit: DepthUnit | str) -> DepthUnit:
 
 
 def write_tops(tops: pd.DataFrame, path: PathLike, *,
-               depth_unit: DepthUnit | str = DepthUnit.M) -> Path:
+               depth_unit: DepthUnit | str = DepthUnit.M,
+               decimals: Decimals = FULL) -> Path:
     """Write tops (``well, surface, md_m``) as ``well, surface, md_<unit>``.
 
     Parameters
@@ -1079,6 +1091,9 @@ def write_tops(tops: pd.DataFrame, path: PathLike, *,
         Target CSV, written atomically.
     depth_unit : DepthUnit or str, default "m"
         Unit of the written MD column; its suffix goes in the column name.
+    decimals : Decimals, optional
+        Written precision (:func:`write_table`); default full precision, so that the file
+        reads back exactly as the input of another run.
 
     Returns
     -------
@@ -1095,11 +1110,12 @@ def write_tops(tops: pd.DataFrame, path: PathLike, *,
         out["well"] = tops["well"].astype(str).to_numpy()
     out["surface"] = tops["surface"].astype(str).to_numpy()
     out[f"md_{unit.suffix}"] = np.asarray(tops["md_m"], dtype=float) / unit.metres
-    return write_table(out, path)
+    return write_table(out, path, decimals=decimals)
 
 
 def write_survey(survey: pd.DataFrame, path: PathLike, *,
-                 depth_unit: DepthUnit | str = DepthUnit.M) -> Path:
+                 depth_unit: DepthUnit | str = DepthUnit.M,
+                 decimals: Decimals = FULL) -> Path:
     """Write a survey with the length unit in the column names (``md_ft``, ``tvd_ft``, ...).
 
     Parameters
@@ -1111,6 +1127,9 @@ def write_survey(survey: pd.DataFrame, path: PathLike, *,
         Target CSV, written atomically.
     depth_unit : DepthUnit or str, default "m"
         Unit of the written length columns (``md_ft``, ``tvd_ft``, ...).
+    decimals : Decimals, optional
+        Written precision (:func:`write_table`); default full precision, so that the file
+        reads back exactly as the input of another run.
 
     Returns
     -------
@@ -1128,4 +1147,4 @@ def write_survey(survey: pd.DataFrame, path: PathLike, *,
     for name in ("tvd", "north", "east"):
         if f"{name}_m" in survey.columns:
             out[f"{name}_{unit.suffix}"] = np.asarray(survey[f"{name}_m"], float) / unit.metres
-    return write_table(out, path)
+    return write_table(out, path, decimals=decimals)
