@@ -70,10 +70,11 @@ def _add_detect(sub):
                    help="relative thickness tolerance for tops (default 0.15)")
     p.add_argument("--tolerance-floor", type=float, default=2.0, metavar="METRES",
                    help="absolute thickness tolerance floor in metres (default 2)")
-    p.add_argument("--out", metavar="CUTS.csv", help="write the cut table here (default stdout)")
+    p.add_argument("--out", metavar="CUTS.csv",
+                   help="write the cut table here (default or -: stdout)")
     p.add_argument("--report", metavar="REPORT.html",
                    help="also write a self-contained HTML report of the well (cut table, "
-                        "figures, assumptions, caution)")
+                        "figures, assumptions, caution); - writes it to stdout")
     p.set_defaults(func=_cmd_detect)
 
 
@@ -117,7 +118,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _write_csv(df, out):
-    if out:
+    if out and out != "-":
         from .io import write_table
 
         write_table(df, out)
@@ -155,9 +156,21 @@ def _summarise(df, unit_suffix: str) -> str:
     return "\n".join(lines)
 
 
+def _where(path) -> str:
+    from .io.outputs import is_stream
+
+    return "standard output" if is_stream(path) else str(path)
+
+
 def _cmd_detect(args) -> int:
     from .detect import detect_files
+    from .io.outputs import is_stream
     from .topcuts import TopsTolerance
+
+    if args.report and is_stream(args.report) and (not args.out or is_stream(args.out)):
+        raise _UsageError("wellfault detect: error: --report " + args.report + " and the cut "
+                          "table would both go to standard output; give --out CUTS.csv (or "
+                          "--out /dev/null)")
 
     result = detect_files(
         args.las, column=args.column, tops=args.tops, survey=args.survey, dip=args.dip,
@@ -173,7 +186,7 @@ def _cmd_detect(args) -> int:
         write_well_report(args.report, well=result.well, column=result.column, cuts_df=df,
                           trajectory=result.trajectory, bed_dip=result.bed_dip,
                           tops=result.tops, track=result.track, tolerance=result.tolerance)
-        print(f"report written to {args.report}", file=sys.stderr)
+        print(f"report written to {_where(args.report)}", file=sys.stderr)
     suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
     print(_summarise(df, suffix), file=sys.stderr)
     print(CAUTION, file=sys.stderr)
