@@ -174,8 +174,8 @@ def test_out_gets_the_table_and_stdout_stays_empty(files, tmp_path) -> None:
 def test_out_into_a_missing_folder_exits_2_naming_it(files, tmp_path) -> None:
     code, out, err = run(*detect_args(files, "--out", tmp_path / "no" / "cuts.csv"))
     assert code == 2
-    assert re.search(r"no/cuts\.csv: cannot write there .*check that the folder exists",
-                     last_error(err))
+    assert re.search(r"cannot write the table '.*no/cuts\.csv': folder '.*/no' does not exist; "
+                     r"create it", last_error(err))
 
 
 @pytest.mark.parametrize("old", [None, "well,md_m\nOLD,1\n"], ids=["new-file", "replacing"])
@@ -212,7 +212,7 @@ def test_out_interrupted_while_the_table_is_formatted_leaves_no_half_file(
 def test_out_failing_half_way_through_the_file_leaves_the_old_one(
     files, tmp_path, monkeypatch, old, failure
 ) -> None:
-    import wellfault.io.tables as tables
+    import wellfault.io.outputs as outputs
 
     target = tmp_path / "cuts.csv"
     if old is not None:
@@ -235,13 +235,14 @@ def test_out_failing_half_way_through_the_file_leaves_the_old_one(
             self.fh.flush()
             raise failure
 
-    monkeypatch.setattr(tables.os, "fdopen", lambda *a, **k: HalfWriter(real_fdopen(*a, **k)))
+    monkeypatch.setattr(outputs.os, "fdopen", lambda *a, **k: HalfWriter(real_fdopen(*a, **k)))
     code, out, err = run(*detect_args(files, "--out", target))
     if failure is KeyboardInterrupt:
         assert code == 130
     else:
         assert code == 2
-        assert re.search(r"cuts\.csv: cannot write \(No space left on device\)", last_error(err))
+        assert re.search(r"cannot write the table '.*cuts\.csv': no space left on device",
+                         last_error(err))
     assert target.read_text() == old if old is not None else not target.exists()
     assert not [p for p in tmp_path.iterdir() if p.name.endswith(".tmp")]
 

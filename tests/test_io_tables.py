@@ -477,7 +477,7 @@ def test_write_table_replaces_the_file_in_one_step(tmp_path: Path) -> None:
 
 
 def test_write_table_to_a_missing_folder_is_an_input_error(tmp_path: Path) -> None:
-    with pytest.raises(InputError, match=r"cannot write there.*folder exists"):
+    with pytest.raises(InputError, match=r"cannot write the table .*folder .* does not exist"):
         write_table(pd.DataFrame({"a": [1]}), tmp_path / "nope" / "out.csv")
 
 

@@ -5,7 +5,6 @@ when one is installed."""
 from __future__ import annotations
 
 import base64
-import os
 import re
 import shutil
 import subprocess
@@ -21,7 +20,6 @@ from wellfault.errors import InputError
 from wellfault.report import (
     field_report,
     well_report,
-    write_atomic,
     write_field_report,
     write_well_report,
 )
@@ -146,32 +144,6 @@ def test_a_failing_figure_is_reported_not_fatal(vr2, monkeypatch):
                        track=track)
     assert "figure not drawn" in text and "broken curve" in text
     assert scan(text).rows["errors"] == 1
-
-
-# ------------------------------------------------------------------------------ atomic write
-def test_write_atomic_replaces_whole_files_and_cleans_up(tmp_path, monkeypatch):
-    target = tmp_path / "r.html"
-    target.write_text("old", encoding="utf-8")
-    os.chmod(target, 0o640)
-    write_atomic(target, "new")
-    assert target.read_text(encoding="utf-8") == "new"
-    assert (target.stat().st_mode & 0o777) == 0o640  # keeps the file's permissions
-
-    def fail(src, dst):
-        raise OSError("disk full")
-
-    monkeypatch.setattr(os, "replace", fail)
-    with pytest.raises(OSError, match="disk full"):
-        write_atomic(target, "newer")
-    assert target.read_text(encoding="utf-8") == "new"  # the old report is intact
-    assert [p.name for p in tmp_path.iterdir()] == ["r.html"]  # no temp file left
-
-
-def test_write_atomic_names_a_bad_path(tmp_path):
-    with pytest.raises(InputError, match="does not exist"):
-        write_atomic(tmp_path / "nowhere" / "r.html", "x")
-    with pytest.raises(InputError, match="is a folder"):
-        write_atomic(tmp_path, "x")
 
 
 # ----------------------------------------------------------------------------- field report

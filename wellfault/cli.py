@@ -74,10 +74,11 @@ def _add_detect(sub):
                    help="relative thickness tolerance for tops (default 0.15)")
     p.add_argument("--tolerance-floor", type=float, default=2.0, metavar="METRES",
                    help="absolute thickness tolerance floor in metres (default 2)")
-    p.add_argument("--out", metavar="CUTS.csv", help="write the cut table here (default stdout)")
+    p.add_argument("--out", metavar="CUTS.csv",
+                   help="write the cut table here (default or -: stdout)")
     p.add_argument("--report", metavar="REPORT.html",
                    help="also write a self-contained HTML report of the well (cut table, "
-                        "figures, assumptions, caution)")
+                        "figures, assumptions, caution); - writes it to stdout")
     p.set_defaults(func=_cmd_detect)
 
 
@@ -127,7 +128,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _write_csv(df, out, decimals: Decimals):
     """The table to ``out`` (or stdout), at the precision its numbers carry."""
-    if out:
+    if out and out != "-":
         from .io import write_table
 
         write_table(df, out, decimals=decimals)
@@ -178,9 +179,21 @@ def _summarise(df, unit_suffix: str, decimals: Decimals = Decimals()) -> str:
     return "\n".join(lines)
 
 
+def _where(path) -> str:
+    from .io.outputs import is_stream
+
+    return "standard output" if is_stream(path) else str(path)
+
+
 def _cmd_detect(args) -> int:
     from .detect import detect_files
+    from .io.outputs import is_stream
     from .topcuts import TopsTolerance
+
+    if args.report and is_stream(args.report) and (not args.out or is_stream(args.out)):
+        raise _UsageError("wellfault detect: error: --report " + args.report + " and the cut "
+                          "table would both go to standard output; give --out CUTS.csv (or "
+                          "--out /dev/null)")
 
     result = detect_files(
         args.las, column=args.column, tops=args.tops, survey=args.survey, dip=args.dip,
@@ -198,7 +211,7 @@ def _cmd_detect(args) -> int:
                           trajectory=result.trajectory, bed_dip=result.bed_dip,
                           tops=result.tops, track=result.track, tolerance=result.tolerance,
                           unit=suffix, decimals=args.decimals)
-        print(f"report written to {args.report}", file=sys.stderr)
+        print(f"report written to {_where(args.report)}", file=sys.stderr)
     print(_summarise(df, suffix, args.decimals), file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK

@@ -119,7 +119,10 @@ def cmd_screen(args) -> int:
         file=sys.stderr)
     if args.report:
         path = _write_report(args, result)
-        print(f"report written to {path}", file=sys.stderr)
+        from .io.outputs import is_stream
+
+        where = "standard output" if is_stream(path) else path
+        print(f"report written to {where}", file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_SOME_FAILED if result.n_failed else EXIT_OK
 

@@ -241,9 +241,10 @@ def make_demo_field(folder: str | Path, *, seed: int = DEFAULT_SEED) -> dict[str
     """
     from .io import write_las, write_table
     from .precision import FULL  # the field's input files, written as drawn
+    from .io.outputs import output_folder, write_output
 
     folder = Path(folder)
-    folder.mkdir(parents=True, exist_ok=True)
+    output_folder(folder, what="the field folder")
     column, beds, faults = field_model(seed)
     rng = np.random.default_rng(seed + 1)
     written: dict[str, Path] = {}
@@ -320,9 +321,8 @@ def make_demo_field(folder: str | Path, *, seed: int = DEFAULT_SEED) -> dict[str
         "fault_order": "youngest first (the order the forward model undoes them)",
         "wells": well_meta,
     }
-    path = folder / "field.json"
-    path.write_text(json.dumps(meta, indent=2) + "\n", encoding="utf-8")
-    written["field.json"] = path
+    written["field.json"] = write_output(folder / "field.json", json.dumps(meta, indent=2) + "\n",
+                                         what="the field description")
     return written
 
 

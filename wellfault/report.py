@@ -3,8 +3,9 @@
 A report holds the cut table (readable, units in the column names), the figures to check each
 cut (PNG images embedded as base64 data, so the file needs no other file and no network), the
 assumptions the numbers rest on (bed dip, fault dip given or assumed, thickness tolerance), the
-errors met on the way and the caution text. Files are written atomically (a temporary file in
-the same folder, then :func:`os.replace`), so a reader never sees half a report.
+errors met on the way and the caution text. Files are written by
+:func:`wellfault.io.outputs.write_output`: a plain file is replaced in one step (a reader never
+sees half a report), ``-`` is standard output, a device or pipe is written straight through.
 
 Entry points
 ------------
@@ -21,7 +22,6 @@ import html
 import io
 import math
 import os
-import tempfile
 from collections.abc import Mapping, Sequence
 from pathlib import Path
 
@@ -30,9 +30,10 @@ import pandas as pd
 
 from . import CAUTION, __version__
 from .errors import InputError
+from .io.outputs import write_output
 
 __all__ = ["well_report", "write_well_report", "field_report", "write_field_report",
-           "cut_table_html", "error_table_html", "write_atomic", "PROGRESS_MIN_WELLS"]
+           "cut_table_html", "error_table_html", "PROGRESS_MIN_WELLS"]
 
 #: Progress bars appear when a report draws figures for at least this many wells.
 PROGRESS_MIN_WELLS = 20
@@ -90,43 +91,6 @@ footer { color: var(--muted); font-size: .8rem; margin-top: 2.5rem; border-top: 
 
 
 # ------------------------------------------------------------------------------ utilities
-def write_atomic(path: str | os.PathLike, text: str) -> Path:
-    """Write ``text`` to ``path`` atomically: a temporary file beside it, then ``os.replace``.
-
-    The folder must exist. An existing file keeps its permissions; a new one gets 0644 less the
-    process umask. The temporary file is removed if anything fails.
-    """
-    path = Path(path)
-    folder = path.parent if str(path.parent) else Path(".")
-    if not folder.is_dir():
-        raise InputError(f"cannot write the report {str(path)!r}: folder {str(folder)!r} does "
-                         "not exist; create it or choose another path")
-    if path.is_dir():
-        raise InputError(f"cannot write the report {str(path)!r}: it is a folder; give a file "
-                         "name such as report.html")
-    if path.exists():
-        mode = path.stat().st_mode & 0o777
-    else:
-        umask = os.umask(0)
-        os.umask(umask)
-        mode = 0o644 & ~umask
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.chmod(tmp, mode)
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
-    return path
-
-
 def _esc(v) -> str:
     return html.escape("" if v is None else str(v), quote=True)
 
@@ -494,7 +458,7 @@ def write_well_report(path: str | os.PathLike, *, well, column, cuts_df: pd.Data
     text = well_report(well=well, column=column, cuts_df=cuts_df, trajectory=trajectory,
                        bed_dip=bed_dip, tops=tops, track=track, assumptions=assumptions,
                        errors=errors, tolerance=tolerance, curve=curve, title=title)
-    return write_atomic(path, text)
+    return write_output(path, text, what="the report")
 
 
 # ----------------------------------------------------------------------------- field report
@@ -677,4 +641,4 @@ def write_field_report(path: str | os.PathLike, *, cuts: pd.DataFrame | None, er
                         tolerance=tolerance, bed_dip=bed_dip, tvdss_m=tvdss_m,
                         max_well_figures=max_well_figures, max_table_rows=max_table_rows,
                         progress=progress, title=title)
-    return write_atomic(path, text)
+    return write_output(path, text, what="the report")

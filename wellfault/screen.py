@@ -70,6 +70,7 @@ from .column import ReferenceColumn
 from .dip import BedDip
 from .errors import InputError, WellfaultError, WellfaultWarning
 from .faultmap import BRACKET_COLUMNS, FaultFitOptions, FaultMap, fit_faults
+from .io.outputs import output_folder, write_output
 from .measure import FaultPlane
 from .neighbours import NeighbourThickness, thickness_samples
 from .precision import Decimals, round_table
@@ -782,14 +783,12 @@ class _Checkpoint:
             for kind in self.loaded:
                 self._read(kind)
         else:
-            if self.folder.is_dir():
-                for p in self.folder.glob("*"):
+            output_folder(self.folder, what="the checkpoint folder")
+            for p in self.folder.glob("*"):
+                if p.is_file() and not p.is_symlink():  # our own files; anything else is left
                     p.unlink()
-            self.folder.mkdir(parents=True, exist_ok=True)
-            tmp = run.with_suffix(".tmp")
-            tmp.write_text(json.dumps({"fingerprint": fingerprint, "version": __version__}),
-                           encoding="utf-8")
-            os.replace(tmp, run)
+            write_output(run, json.dumps({"fingerprint": fingerprint, "version": __version__}),
+                         what="the checkpoint")
 
     def _path(self, kind: str) -> Path:
         return self.folder / f"{kind}.jsonl"
@@ -957,7 +956,7 @@ def _write_tables(result: ScreenResult, folder: Path, fmt: str,
     fmt = str(fmt).lower()
     if fmt not in ("csv", "parquet"):
         raise InputError(f"output format {fmt!r} is not known; use csv or parquet")
-    folder.mkdir(parents=True, exist_ok=True)
+    output_folder(folder)
     written = {}
     for name in OUTPUT_FILES:
         df = getattr(result, name)
@@ -970,9 +969,9 @@ def _write_tables(result: ScreenResult, folder: Path, fmt: str,
             except ImportError:
                 raise InputError("Parquet output needs pyarrow; install it (pip install "
                                  "'wellfault[parquet]') or write CSV") from None
-            tmp = path.with_name(f".{path.name}.tmp")
-            round_table(df, decimals).to_parquet(tmp, index=False)
-            os.replace(tmp, path)
+            typed = round_table(df, decimals)
+            write_output(path, lambda fh, df=typed: df.to_parquet(fh, index=False),
+                         what=f"the {name} table")
         written[name] = path
     return written
 
@@ -1119,8 +1118,7 @@ def screen_wells(
                 "fault_options": dataclasses.asdict(fault_options)}
     ckpt = None
     if out_dir is not None:
-        out_path = Path(out_dir)
-        out_path.mkdir(parents=True, exist_ok=True)
+        out_path = output_folder(out_dir)
         ckpt = _Checkpoint(out_path, _fingerprint(cfg, tasks, settings), bool(resume))
 
     # per-well state, by manifest index

@@ -28,7 +28,8 @@ from numpy.typing import NDArray
 from ..errors import InputError, UnitError, WellfaultWarning
 from ..units import DepthUnit, parse_depth_unit
 from ..well import Well
-from .tables import PathLike, _atomic_write_text, _decode, _read_bytes
+from .outputs import write_output
+from .tables import PathLike, _decode, _read_bytes
 
 __all__ = ["read_las", "write_las", "COMMON_NULLS"]
 
@@ -693,14 +694,14 @@ def _format_depths(values: NDArray[np.float64]) -> list[str]:
 
 
 def write_las(well: Well, path: PathLike, *, depth_unit: DepthUnit | str | None = None) -> Path:
-    """Write a well as a LAS 2.0 file (unwrapped), atomically.
+    """Write a well as a LAS 2.0 file (unwrapped) through :func:`~wellfault.io.outputs.write_output`.
 
     Parameters
     ----------
     well : Well
         Curves indexed by ``md_m``; NaN is written as the NULL value -999.25.
     path : str or PathLike
-        Target file; written to a temporary file beside it, then renamed.
+        Target file (``-`` for standard output); a plain file is replaced in one step.
     depth_unit : DepthUnit or str, optional
         Unit of the depths and the elevation in the file (default: ``well.depth_unit``).
 
@@ -766,4 +767,4 @@ def write_las(well: Well, path: PathLike, *, depth_unit: DepthUnit | str | None 
     values[~np.isfinite(values)] = null
     row_format = "%s" + " %.10g" * values.shape[1]
     body = "".join(row_format % (d, *row) + "\n" for d, row in zip(depth_text, values.tolist()))
-    return _atomic_write_text(path, "\n".join(head) + "\n" + body)
+    return write_output(path, "\n".join(head) + "\n" + body, what="the LAS file")

@@ -9,8 +9,9 @@ two that disagree, or none at all, raise :class:`~wellfault.errors.UnitError`. L
 converted to metres here, once.
 
 Messages name the file, the source line (``row`` is the 1-based line number in the file), the bad
-value and the fix. Everything that writes a table goes through :func:`write_table`, which writes a
-temporary file beside the target and renames it, so a reader never sees half a file.
+value and the fix. Everything that writes a table goes through :func:`write_table`, which hands
+the text to :func:`wellfault.io.outputs.write_output` (a plain file is replaced in one step, so a
+reader never sees half a file; ``-``, devices, pipes and links are handled as they need).
 """
 
 from __future__ import annotations
@@ -20,8 +21,6 @@ import io
 import json
 import os
 import re
-import stat
-import tempfile
 import warnings
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
@@ -41,6 +40,7 @@ from ..errors import (
 )
 from ..precision import FULL, Decimals, table_text
 from ..units import DepthUnit, parse_depth_unit
+from .outputs import write_output
 
 __all__ = [
     "read_table",
@@ -997,47 +997,9 @@ def read_manifest(
 # writers
 
 
-def _file_mode(target: Path) -> int:
-    """Permissions for a new file at ``target``: the replaced file's, else 0666 less the umask."""
-    try:
-        return stat.S_IMODE(target.stat().st_mode)
-    except OSError:
-        pass
-    mask = os.umask(0o022)  # reading the umask means setting it: put it straight back
-    os.umask(mask)
-    return 0o666 & ~mask
-
-
-def _atomic_write_text(path: PathLike, text: str) -> Path:
-    """Write ``text`` to a temporary file beside ``path`` and rename it over ``path``."""
-    target = Path(path)
-    folder = target.parent if str(target.parent) else Path(".")
-    try:
-        fd, tmp = tempfile.mkstemp(dir=folder, prefix=f".{target.name}.", suffix=".tmp")
-    except OSError as err:
-        raise InputError(
-            f"{target}: cannot write there ({err.strerror}); check that the folder exists and "
-            "is writable"
-        ) from err
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            fh.write(text)
-        # mkstemp makes the file private (0600); give it the mode a plain open() would, or
-        # keep the mode of the file it replaces
-        os.chmod(tmp, _file_mode(target))
-        os.replace(tmp, target)
-    except OSError as err:
-        Path(tmp).unlink(missing_ok=True)
-        raise InputError(f"{target}: cannot write ({err.strerror}); check the path") from err
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return target
-
-
 def write_table(df: pd.DataFrame, path: PathLike, *, index: bool = False,
                 float_format: str | None = None, decimals: Decimals = Decimals()) -> Path:
-    """Write a DataFrame as UTF-8 CSV atomically (temporary file, then rename).
+    """Write a DataFrame as UTF-8 CSV (:func:`~wellfault.io.outputs.write_output`).
 
     Numbers are written at the precision they carry (:mod:`wellfault.precision`: 0.01 m or
     0.1 ft for lengths, 0.1 degree for angles, 2 decimals for confidences); ``df`` itself is
@@ -1048,7 +1010,8 @@ def write_table(df: pd.DataFrame, path: PathLike, *, index: bool = False,
     df : DataFrame
         Table to write.
     path : str or PathLike
-        Target file; replaced in one step, so readers never see a half-written file.
+        Target file, ``-`` for standard output; a plain file is replaced in one step, so
+        readers never see a half-written file.
     index : bool, default False
         Write the index as the first column.
     float_format : str, optional
@@ -1071,7 +1034,7 @@ def write_table(df: pd.DataFrame, path: PathLike, *, index: bool = False,
         text = df.to_csv(index=index, float_format=float_format, lineterminator="\n")
     else:
         text = table_text(df, decimals, index=index)
-    return _atomic_write_text(path, text)
+    return write_output(path, text, what="the table")
 
 
 def _unit_of(depth_unit: DepthUnit | str) -> DepthUnit:
@@ -1088,7 +1051,7 @@ def write_tops(tops: pd.DataFrame, path: PathLike, *,
     tops : DataFrame
         Columns ``surface`` and ``md_m`` [m], optionally ``well``.
     path : str or PathLike
-        Target CSV, written atomically.
+        Target CSV (:func:`~wellfault.io.outputs.write_output`).
     depth_unit : DepthUnit or str, default "m"
         Unit of the written MD column; its suffix goes in the column name.
     decimals : Decimals, optional
@@ -1124,7 +1087,7 @@ def write_survey(survey: pd.DataFrame, path: PathLike, *,
         Columns ``md_m`` [m], ``inc_deg``, ``azi_deg`` [°]; ``tvd_m``, ``north_m``, ``east_m``
         [m] are written too when present.
     path : str or PathLike
-        Target CSV, written atomically.
+        Target CSV (:func:`~wellfault.io.outputs.write_output`).
     depth_unit : DepthUnit or str, default "m"
         Unit of the written length columns (``md_ft``, ``tvd_ft``, ...).
     decimals : Decimals, optional
