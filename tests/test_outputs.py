@@ -126,7 +126,7 @@ def test_a_named_pipe_is_written_through_and_stays_a_pipe(tmp_path):
     reader.start()
     write_table(pd.DataFrame({"md_m": [1.5]}), fifo)
     reader.join(timeout=10)
-    assert got == [b"md_m\n1.5\n"]
+    assert got == [b"md_m\n1.50\n"]  # lengths in metres are written to 0.01 m
     assert stat.S_ISFIFO(os.stat(fifo).st_mode)
 
 

@@ -15,6 +15,7 @@ import sys
 
 from . import CAUTION
 from .errors import InputError, WellfaultError
+from .precision import DECIMALS_HELP, Decimals, decimals_option
 
 __all__ = ["add_screen_parser", "cmd_screen", "main"]
 
@@ -57,8 +58,12 @@ def add_screen_parser(subparsers) -> argparse.ArgumentParser:
                         "local process pool")
     p.add_argument("--resume", action="store_true",
                    help="skip the wells already finished in --out (after an interruption)")
-    p.add_argument("--output-unit", choices=["m", "ft"], default="m",
-                   help="length unit of the tables (default m)")
+    p.add_argument("--output-unit", choices=["m", "ft"],
+                   help="length unit of the tables, the summary and the report (default: the "
+                        "wells' unit when their LAS files share one, else m; a field in mixed "
+                        "units says so)")
+    p.add_argument("--decimals", type=decimals_option, default=Decimals(), metavar="N|full",
+                   help=DECIMALS_HELP)
     p.add_argument("--depth-unit", choices=["m", "ft", "usft"],
                    help="depth unit of files that state none (the manifest's depth_unit "
                         "column wins for its well)")
@@ -109,7 +114,7 @@ def cmd_screen(args) -> int:
             neighbours=not args.no_neighbours, fit=not args.no_faults,
             depth_unit=args.depth_unit, unit=args.output_unit, workers=args.workers,
             client=client, progress=not args.no_progress, out_dir=args.out,
-            fmt=args.format, resume=args.resume)
+            fmt=args.format, resume=args.resume, decimals=args.decimals)
     finally:
         if client is not None:
             client.close()
@@ -164,7 +169,8 @@ def _write_report(args, result):
     return write_field_report(
         args.report, cuts=result.cuts, errors=result.errors, wells=wells, faults=faults,
         paths=paths, tolerance=TopsTolerance(args.tolerance, args.tolerance_floor),
-        progress=not args.no_progress,
+        progress=not args.no_progress, unit=result.info.get("unit"),
+        unit_note=result.info.get("unit_note"), decimals=args.decimals,
         title=f"Fault cuts screened in {len(manifest)} wells of {name}")
 
 

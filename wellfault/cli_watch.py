@@ -31,6 +31,7 @@ import warnings
 
 from . import CAUTION
 from .errors import InputError, WellfaultError, WellfaultWarning
+from .precision import DECIMALS_HELP, Decimals, decimals_option, format_length, lengths_in_text
 
 __all__ = ["add_watch_parser", "cmd_watch", "main"]
 
@@ -74,6 +75,8 @@ def add_watch_parser(subparsers) -> argparse.ArgumentParser:
                    help="depth unit of files that do not state one")
     p.add_argument("--output-unit", choices=["m", "ft"],
                    help="length unit of the output (default: the log's)")
+    p.add_argument("--decimals", type=decimals_option, default=Decimals(), metavar="N|full",
+                   help=DECIMALS_HELP)
     p.add_argument("--jsonl", action="store_true",
                    help="write one JSON object per line to stdout instead of text")
     p.add_argument("--once", action="store_true",
@@ -93,33 +96,37 @@ def add_watch_parser(subparsers) -> argparse.ArgumentParser:
 
 # -------------------------------------------------------------------------------- printers
 class _JsonPrinter:
-    def __init__(self, unit) -> None:
+    def __init__(self, unit, decimals: Decimals = Decimals()) -> None:
         self.unit = unit
+        self.decimals = decimals
 
     def start(self, text: str) -> None:
         print(text, file=sys.stderr, flush=True)
 
+    def text(self, message: str) -> str:
+        """A sentence of the watcher with its lengths in the output unit."""
+        return lengths_in_text(message, self.unit, self.decimals)
+
     def emit(self, events) -> None:
         for e in events:
             if e.kind == "notice":
-                print(f"wellfault watch: {e.message}", file=sys.stderr, flush=True)
-            sys.stdout.write(json.dumps(e.to_dict(self.unit), allow_nan=False) + "\n")
+                print(f"wellfault watch: {self.text(e.message)}", file=sys.stderr, flush=True)
+            sys.stdout.write(json.dumps(e.to_dict(self.unit, self.decimals), allow_nan=False)
+                             + "\n")
         sys.stdout.flush()
 
 
-class _TextPrinter:
-    def __init__(self, unit, every_m: float) -> None:
-        self.unit = unit
+class _TextPrinter(_JsonPrinter):
+    def __init__(self, unit, every_m: float, decimals: Decimals = Decimals()) -> None:
+        super().__init__(unit, decimals)
         self.k = 1.0 / unit.metres
         self.sx = unit.suffix
         self.every_m = every_m
         self.next_m = -math.inf
 
-    def start(self, text: str) -> None:
-        print(text, file=sys.stderr, flush=True)
-
-    def L(self, v: float, digits: int = 1) -> str:  # noqa: N802 - a length in the output unit
-        return "-" if v is None or not math.isfinite(v) else f"{v * self.k:.{digits}f}"
+    def L(self, v: float) -> str:  # noqa: N802 - a length in the output unit
+        """A length given in metres, in the output unit at its precision (no unit)."""
+        return format_length(v, self.unit, self.decimals, label=False)
 
     def position(self, st) -> str:
         where = (f"in {st.unit}, {self.L(st.below_unit_top_m)} {self.sx} below its top"
@@ -166,14 +173,14 @@ class _TextPrinter:
             elif e.kind == "cut-revised":
                 what = "RETRACTED" if e.change == "retracted" else f"REVISED ({e.change})"
                 line = f"*** FAULT CUT {e.cut_id} {what} at bit MD {self.L(e.bit_md_m)} " \
-                       f"{self.sx}: {e.message}"
+                       f"{self.sx}: {self.text(e.message)}"
                 if e.change != "retracted":
                     line += f"\n    now: {self.cut_text(e.cut)}"
                 out.append(line)
             elif e.kind == "forecast":
                 out += self.forecast(e.forecast)
             elif e.kind == "notice":
-                print(f"wellfault watch: {e.message}", file=sys.stderr, flush=True)
+                print(f"wellfault watch: {self.text(e.message)}", file=sys.stderr, flush=True)
             elif e.kind == "summary":
                 out.append(self.summary(e))
         if out:
@@ -301,7 +308,8 @@ def _watch(args) -> int:
     unit = parse_depth_unit(args.output_unit) if args.output_unit else facts.depth_unit
     every = args.print_every * unit.metres if args.print_every else \
         (30 * 0.3048 if unit.suffix == "ft" else 10.0)
-    printer = _JsonPrinter(unit) if args.jsonl else _TextPrinter(unit, every)
+    printer = _JsonPrinter(unit, args.decimals) if args.jsonl else \
+        _TextPrinter(unit, every, args.decimals)
     path_text = (f"survey to MD {survey.md_max_m / unit.metres:.1f} {unit.suffix}"
                  if args.survey else "vertical (no survey)")
     if plan is not None:
@@ -310,7 +318,7 @@ def _watch(args) -> int:
     printer.start(f"wellfault watch: {facts.well_name} ({args.well}, {facts.kind.upper()}, "
                   f"depths in {facts.depth_unit.value}), curves {', '.join(watcher.curves)} "
                   f"against the type log of {args.type_well}; bed dip "
-                  f"{watcher.bed_dip.describe()}; path: {path_text}")
+                  f"{printer.text(watcher.bed_dip.describe())}; path: {path_text}")
 
     def feed_rows(rows):
         events = []

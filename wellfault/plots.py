@@ -5,8 +5,10 @@ Every function returns a :class:`matplotlib.figure.Figure` built without pyplot 
 figure state, nothing shown; save it with ``fig.savefig`` or let a notebook display it).
 matplotlib is imported inside the functions, so ``import wellfault`` never pays for it.
 
-Lengths on the figures are in metres whatever the cut table's unit (tables in feet are
-converted once, :func:`wellfault.track.cuts_in_metres`).
+Lengths are drawn in metres (tables in feet are converted once,
+:func:`wellfault.track.cuts_in_metres`) and shown in the figure's unit: every length axis is
+ticked and labelled in ``unit`` (default: the cut table's unit, else the well's), and every
+length written on a figure is in that unit too (:func:`length_axis`).
 
 Checking figures in code
 ------------------------
@@ -30,6 +32,7 @@ import pandas as pd
 
 from .errors import InputError
 from .track import check_track, cuts_in_metres, track_steps
+from .units import DepthUnit, parse_depth_unit
 
 __all__ = [
     "correlation_panel",
@@ -40,6 +43,8 @@ __all__ = [
     "artists_with_gid",
     "SECTION_STYLE",
     "unit_colours",
+    "length_axis",
+    "display_unit",
 ]
 
 # ---------------------------------------------------------------------------------- style
@@ -66,6 +71,54 @@ LOW_CONFIDENCE = 0.5
 #: Colours of faults on the separation plot (cycled).
 FAULT_COLOURS = ("#6a3d6a", "#3f7f5f", "#b08a2e", "#5a6b7b", "#2f7f86", "#a3506b", "#6f7a2e",
                  "#7a5c4a")
+
+
+def display_unit(unit=None, cuts: pd.DataFrame | None = None, well=None) -> DepthUnit:
+    """The unit a figure shows lengths in: ``unit`` when given, else the cut table's (its
+    column names), else the well's depth unit, else metres."""
+    if unit is not None:
+        return parse_depth_unit(unit)
+    if cuts is not None:
+        for c in cuts.columns:
+            if str(c).endswith(("_ft", "_usft")):
+                return DepthUnit.FT
+            if str(c) == "md_m":
+                return DepthUnit.M
+    wu = getattr(well, "depth_unit", None)
+    return parse_depth_unit(wu) if wu is not None else DepthUnit.M
+
+
+def _length_locator(per_m: float):
+    from matplotlib.ticker import MaxNLocator
+
+    class _Locator(MaxNLocator):
+        """Round ticks in the shown unit for data plotted in metres."""
+
+        def tick_values(self, vmin, vmax):
+            return np.asarray(super().tick_values(vmin * per_m, vmax * per_m)) / per_m
+
+    return _Locator(nbins="auto", steps=[1, 2, 2.5, 5, 10])
+
+
+def _tick_text(x: float) -> str:
+    text = f"{x:.6f}".rstrip("0").rstrip(".")
+    return "0" if text in ("-0", "") else text
+
+
+def length_axis(axis, unit: DepthUnit, label: str) -> None:
+    """Tick and label a matplotlib axis whose data are metres in ``unit``: round ticks in
+    ``unit`` and ``label [unit]``."""
+    from matplotlib.ticker import FuncFormatter
+
+    per_m = 1.0 / unit.metres
+    axis.set_major_locator(_length_locator(per_m))
+    axis.set_major_formatter(FuncFormatter(lambda v, _pos: _tick_text(v * per_m)))
+    axis.set_label_text(f"{label} [{unit.suffix}]")
+
+
+def _len(value_m: float, unit: DepthUnit, nd: int = 0) -> str:
+    """A length in metres as text in ``unit``, ``nd`` decimals, unit appended."""
+    return f"{value_m / unit.metres:.{nd}f} {unit.suffix}"
 
 
 def _style(section: str) -> dict:
@@ -250,7 +303,8 @@ def _place_labels(ax, labels, obstacles=(), *, marker_pt: float = 5.0, zorder: f
 # ------------------------------------------------------------------------ correlation panel
 def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFrame | None, *,
                       curve: str = "GR", tie_every_m: float | None = None,
-                      md_range: tuple[float, float] | None = None, title: str | None = None):
+                      md_range: tuple[float, float] | None = None, title: str | None = None,
+                      unit=None):
     """The well's curve beside the type log, tied by stratigraphic position.
 
     Four tracks, left to right: the well's ``curve`` against MD (shaded by the unit the track
@@ -281,6 +335,8 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
         MD window [m]; default the track's extent (else the logged interval).
     title : str, optional
         Figure title.
+    unit : "m" or "ft", optional
+        Unit of the axes and labels (default: the cut table's, else the well's).
     """
     from matplotlib.patches import Polygon
     from matplotlib.lines import Line2D
@@ -288,6 +344,7 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
 
     name = str(getattr(well, "name", "well"))
     curves = getattr(well, "curves", None)
+    du = display_unit(unit, cuts, well)
     c = _cuts_for(cuts, name)
     t = check_track(track) if track is not None else None
     cname = _curve_name(curves, curve)
@@ -338,7 +395,7 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
         ax_w.set_xlabel(f"{cname} (well)")
     else:
         ax_w.text(0.5, 0.5, "no curves in the well", transform=ax_w.transAxes, ha="center")
-    ax_w.set_ylabel("MD [m]")
+    length_axis(ax_w.yaxis, du, "MD")
     ax_w.set_title(f"well {name}\nagainst measured depth", fontsize=9)
     ax_w.xaxis.set_label_position("top")
     ax_w.xaxis.tick_top()
@@ -382,7 +439,7 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
     ax_c.set_title("reference\ncolumn", fontsize=9)
     ax_c.yaxis.tick_right()
     ax_c.yaxis.set_label_position("right")
-    ax_c.set_ylabel("s: TST below the top of the column [m]")
+    length_axis(ax_c.yaxis, du, "s: TST below the top of the column")
     ax_c.tick_params(axis="y", labelright=True, labelleft=False, left=False)
     fig_h_pt = fig.get_figheight() * 72 * (0.905 - 0.085)
     pt_per_m = fig_h_pt / (s_hi - s_lo)
@@ -449,7 +506,7 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
             ax_w.plot([0.985, 0.985], [top, base], transform=blend_w, color=st["colour"],
                       lw=5, alpha=0.55, solid_capstyle="butt", gid="cut-bracket", zorder=3)
         tst = float(getattr(row, "tst_m", np.nan))
-        label = f"{sec} {tst:.0f} m TST" if np.isfinite(tst) else sec
+        label = f"{sec} {_len(tst, du)} TST" if np.isfinite(tst) else sec
         ax_w.text(0.03, md, label, transform=blend_w, ha="left", va="bottom", fontsize=8,
                   color=st["colour"], fontweight="bold", zorder=4,
                   bbox=dict(boxstyle="round,pad=0.15", fc="white", ec="none", alpha=0.8))
@@ -461,7 +518,7 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
         lo, hi = sorted((s_a, s_b))
         ax_r.axhspan(lo, hi, facecolor=_rgba(st["colour"], 0.22), edgecolor=st["colour"],
                      hatch=st["hatch"], lw=1.0, zorder=1.5, gid=f"cut-{sec}-interval")
-        ax_r.text(0.97, 0.5 * (lo + hi), f"{sec}\n{hi - lo:.0f} m", ha="right", va="center",
+        ax_r.text(0.97, 0.5 * (lo + hi), f"{sec}\n{_len(hi - lo, du)}", ha="right", va="center",
                   transform=blended_transform_factory(ax_r.transAxes, ax_r.transData),
                   fontsize=8, color=st["colour"], fontweight="bold", zorder=4,
                   bbox=dict(boxstyle="round,pad=0.15", fc="white", ec="none", alpha=0.8))
@@ -484,7 +541,8 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
                              "MD interval holding the cut")]
     if tie_every_m:
         handles.append(Line2D([], [], color="#8a8f96", lw=0.6, ls=":",
-                              label=f"tie every {tie_every_m:g} m of MD"))
+                              label=f"tie every {tie_every_m / du.metres:g} {du.suffix} "
+                                    "of MD"))
     fig.legend(handles=handles, loc="lower center", ncol=2, frameon=False, fontsize=8.5,
                bbox_to_anchor=(0.5, 0.005))
     n_cuts = len(c)
@@ -496,7 +554,8 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
 
 # ------------------------------------------------------------------- stratigraphic position
 def strat_position_plot(track: pd.DataFrame, cuts: pd.DataFrame | None = None, *,
-                        column=None, well: str | None = None, title: str | None = None):
+                        column=None, well: str | None = None, title: str | None = None,
+                        unit=None):
     """Stratigraphic position s against MD: a fault is a step.
 
     MD runs down the page; s (TST below the top of the column) runs to the right, down-section.
@@ -517,6 +576,8 @@ def strat_position_plot(track: pd.DataFrame, cuts: pd.DataFrame | None = None, *
         track.
     well : str, optional
         Well name for the title and to select cuts.
+    unit : "m" or "ft", optional
+        Unit of the axes and labels (default: the cut table's, else metres).
     """
     from matplotlib.lines import Line2D
     from matplotlib.patches import Patch
@@ -525,6 +586,7 @@ def strat_position_plot(track: pd.DataFrame, cuts: pd.DataFrame | None = None, *
     if len(t) == 0:
         raise InputError("the track is empty: nothing to plot")
     name = well or t.attrs.get("well")
+    du = display_unit(unit, cuts)
     c = _cuts_for(cuts, name)
     md = t["md_m"].to_numpy(float)
     s = t["s_m"].to_numpy(float)
@@ -591,7 +653,7 @@ def strat_position_plot(track: pd.DataFrame, cuts: pd.DataFrame | None = None, *
                                     shrinkA=0, shrinkB=0, mutation_scale=14))
         marks.setdefault(sec, []).append((s_a, cmd))
         tst = float(getattr(row, "tst_m", abs(s_b - s_a)))
-        txt = f"{sec} {tst:.0f} m TST\nMD {cmd:.0f} m"
+        txt = f"{sec} {_len(tst, du)} TST\nMD {_len(cmd, du)}"
         # write the label on the side of the step where the track leaves more room
         near = np.abs(md - cmd) <= 0.06 * (md[-1] - md[0] + 1.0)
         s_near = s[near & np.isfinite(s)]
@@ -612,9 +674,9 @@ def strat_position_plot(track: pd.DataFrame, cuts: pd.DataFrame | None = None, *
         xy = np.array(pts)
         ax.scatter(xy[:, 0], xy[:, 1], marker=st["marker"], s=40, color=st["colour"],
                    edgecolor="white", lw=0.8, zorder=5, gid=f"cut-{sec}")
-    ax.set_xlabel("s: stratigraphic position, TST below the top of the column [m]   "
-                  "(down-section \u2192)")
-    ax.set_ylabel("MD [m]")
+    length_axis(ax.xaxis, du, "s: stratigraphic position, TST below the top of the column")
+    ax.set_xlabel(ax.xaxis.get_label_text() + "   (down-section \u2192)")
+    length_axis(ax.yaxis, du, "MD")
     ax.grid(color="white", lw=0.6, alpha=0.8)
 
     conf = t["confidence"].to_numpy(float)
@@ -739,7 +801,7 @@ def _path_xy(path, head) -> np.ndarray | None:
 
 def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
               paths: Mapping | None = None, tvdss_m: float | None = None,
-              title: str | None = None, label_wells: bool | None = None):
+              title: str | None = None, label_wells: bool | None = None, unit=None):
     """Map of the wells, their cut points and the fault traces at one depth.
 
     Parameters
@@ -761,6 +823,9 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
         Depth of the fault traces [m TVDSS]; default the median depth of the cuts.
     label_wells : bool, optional
         Write well names (default: when at most 60 wells).
+    unit : "m" or "ft", optional
+        Unit of the axes, the posted separations and the trace depth (default: the cut
+        table's, else metres).
     """
     from matplotlib.lines import Line2D
 
@@ -773,6 +838,7 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
     w["x_m"] = pd.to_numeric(w["x_m"], errors="coerce")
     w["y_m"] = pd.to_numeric(w["y_m"], errors="coerce")
     w = w.dropna(subset=["x_m", "y_m"])
+    du = display_unit(unit, cuts)
     c = cuts_in_metres(cuts)
     f = _faults_table(faults)
     paths = dict(paths or {})
@@ -827,7 +893,8 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
                 for r in g.itertuples(index=False):
                     vs = float(r.vertical_separation_m)
                     if np.isfinite(vs):
-                        labels.append(dict(x=r.x_m, y=r.y_m, text=f"{st['sign']}{vs:.0f}",
+                        labels.append(dict(x=r.x_m, y=r.y_m,
+                                           text=f"{st['sign']}{vs / du.metres:.0f}",
                                            colour=st["colour"], weight="bold", size=8.5))
     x_all = np.concatenate(xs) if xs else np.zeros(0)
     y_all = np.concatenate(ys) if ys else np.zeros(0)
@@ -887,9 +954,8 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
                 bbox=dict(boxstyle="round,pad=0.15", fc="white", ec="none", alpha=0.8))
         obstacles.append(tuple(lab))
     _place_labels(ax, labels, obstacles, marker_pt=5.5)
-    ax.ticklabel_format(useOffset=False, style="plain")
-    ax.set_xlabel("easting x [m]")
-    ax.set_ylabel("northing y [m]")
+    length_axis(ax.xaxis, du, "easting x")
+    length_axis(ax.yaxis, du, "northing y")
     ax.tick_params(labelsize=8)
     ax.grid(color="#d9dde2", lw=0.5)
     ax.set_facecolor("#fbfaf7")
@@ -908,15 +974,16 @@ def field_map(wells_xy: pd.DataFrame, cuts: pd.DataFrame | None, faults=None, *,
                               mec="white", label=f"cut: {st['words']}"))
     if n_traces:
         handles.append(Line2D([], [], color=FAULT, lw=2.0,
-                              label=f"fault trace at {tvdss_m:.0f} m TVDSS; ticks (normal)\n"
+                              label=f"fault trace at {_len(tvdss_m, du)} TVDSS; ticks (normal)\n"
                                     "or triangles (reverse) on the hanging wall"))
     if any_weak:
         handles.append(Line2D([], [], ls="", marker="o", mfc="white", mec="#8a8f96", mew=1.8,
                               ms=8, label=f"open symbol: cut with confidence below "
                                           f"{LOW_CONFIDENCE:g}"))
     if any(lab.get("weight") == "bold" for lab in labels):
-        handles.append(Line2D([], [], ls="", label="posted: vertical separation [m], "
-                                                    "\u2212 missing, + repeated"))
+        handles.append(Line2D([], [], ls="", label=f"posted: vertical separation "
+                                                    f"[{du.suffix}], \u2212 missing, "
+                                                    "+ repeated"))
     fig.legend(handles=handles, loc="lower center", ncol=2, frameon=False, fontsize=8.5,
                bbox_to_anchor=(0.5, 0.005))
     n = len(c)
@@ -934,7 +1001,8 @@ def _cut_fault_column(c: pd.DataFrame) -> str | None:
     return None
 
 
-def separation_along_strike(faults, cuts: pd.DataFrame | None, *, title: str | None = None):
+def separation_along_strike(faults, cuts: pd.DataFrame | None, *, title: str | None = None,
+                            unit=None):
     """Each fault's vertical separation against distance along its strike.
 
     Cuts are matched to faults by the cut table's ``fault_id`` (or ``fault_name``) column.
@@ -950,10 +1018,13 @@ def separation_along_strike(faults, cuts: pd.DataFrame | None, *, title: str | N
         ``fault_id, strike_deg, dip_deg, dip_azimuth_deg, sense, x_m, y_m[, tvdss_m]``.
     cuts : DataFrame
         The cut table with ``x_m, y_m, vertical_separation`` and a fault column.
+    unit : "m" or "ft", optional
+        Unit of the axes (default: the cut table's, else metres).
     """
     from matplotlib.lines import Line2D
 
     f = _faults_table(faults)
+    du = display_unit(unit, cuts)
     c = cuts_in_metres(cuts)
     fig = _figure(9.5, 6.5)
     ax = fig.add_axes([0.1, 0.24, 0.86, 0.66])
@@ -1006,9 +1077,9 @@ def separation_along_strike(faults, cuts: pd.DataFrame | None, *, title: str | N
     else:
         ax.set_ylim(bottom=0)
     _place_labels(ax, labels, points, marker_pt=5.0)
-    ax.set_xlabel("distance along strike from the fault's reference point [m] "
-                  "(strike = dip azimuth \u2212 90\u00b0)")
-    ax.set_ylabel("vertical separation [m]")
+    length_axis(ax.xaxis, du, "distance along strike from the fault's reference point")
+    ax.set_xlabel(ax.xaxis.get_label_text() + " (strike = dip azimuth \u2212 90\u00b0)")
+    length_axis(ax.yaxis, du, "vertical separation")
     ax.grid(color="#d9dde2", lw=0.5)
     for sec in ("missing", "repeated"):
         st = _style(sec)

@@ -37,7 +37,7 @@ from .errors import InputError
 from .units import DepthUnit, parse_depth_unit
 
 __all__ = ["Decimals", "parse_decimals", "decimals_option", "column_decimals", "round_table",
-           "table_text", "round_value", "format_length", "lengths_in_text", "FULL",
+           "table_text", "format_table", "round_value", "format_length", "lengths_in_text", "FULL",
            "DECIMALS_HELP"]
 
 #: Length decimals by unit suffix: 0.01 m, 0.1 ft.
@@ -150,12 +150,9 @@ def _fixed(values, nd: int):
     return pd.Series(text, index=values.index, dtype=object)
 
 
-def table_text(df, decimals: Decimals = Decimals(), *, index: bool = False) -> str:
-    """CSV text of DataFrame ``df``, each float column written with its rule's fixed decimals.
-
-    Missing values are empty cells; columns without a rule are written as pandas writes them.
-    This is where a table becomes text: the one place its precision is set.
-    """
+def format_table(df, decimals: Decimals = Decimals()):
+    """A copy of DataFrame ``df``, each float column with a rule turned into text with that
+    rule's fixed decimals (missing values: empty text); other columns as they are."""
     import pandas as pd
 
     out = df.copy()
@@ -163,7 +160,15 @@ def table_text(df, decimals: Decimals = Decimals(), *, index: bool = False) -> s
         nd = column_decimals(c, decimals)
         if nd is not None and pd.api.types.is_float_dtype(out[c]):
             out[c] = _fixed(out[c], nd)
-    return out.to_csv(index=index, lineterminator="\n")
+    return out
+
+
+def table_text(df, decimals: Decimals = Decimals(), *, index: bool = False) -> str:
+    """CSV text of DataFrame ``df``, numbers at the precision they carry (:func:`format_table`).
+
+    This is where a table becomes text: the one place its precision is set.
+    """
+    return format_table(df, decimals).to_csv(index=index, lineterminator="\n")
 
 
 def format_length(value_m, unit: DepthUnit | str, decimals: Decimals = Decimals(), *,

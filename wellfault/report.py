@@ -31,6 +31,8 @@ import pandas as pd
 from . import CAUTION, __version__
 from .errors import InputError
 from .io.outputs import write_output
+from .precision import Decimals, column_decimals, format_length, format_table, lengths_in_text
+from .units import DepthUnit
 
 __all__ = ["well_report", "write_well_report", "field_report", "write_field_report",
            "cut_table_html", "error_table_html", "PROGRESS_MIN_WELLS"]
@@ -120,14 +122,28 @@ def _unit_of(cuts: pd.DataFrame) -> str:
     return "m"
 
 
-def _fmt(v, nd=1) -> str:
+def _fmt(v, nd: int | None = 1) -> str:
+    """A cell as text: floats with ``nd`` decimals and thousands separators (None: as is)."""
     if v is None:
         return ""
     if isinstance(v, (float, np.floating)):
         if not math.isfinite(float(v)):
             return ""
-        return f"{float(v):,.{nd}f}"
+        return repr(float(v)) if nd is None else f"{float(v):,.{nd}f}"
     return str(v)
+
+
+def _cell(v, column: str, decimals: Decimals) -> str:
+    """A cell of column ``column`` at the precision its rule gives (1 decimal without one)."""
+    nd = column_decimals(column, decimals)
+    return _fmt(v, nd if nd is not None or decimals.full else 1)
+
+
+def _length(value_m, unit: DepthUnit, decimals: Decimals, *, nd: int | None = None) -> str:
+    """A length in metres as report text in ``unit`` (``"2.0 ft"``)."""
+    if nd is not None:
+        return f"{float(value_m) / unit.metres:.{nd}f} {unit.suffix}"
+    return format_length(value_m, unit, decimals)
 
 
 def _chip(section) -> str:
@@ -150,13 +166,14 @@ def _table(headers: Sequence[str], rows: Sequence[Sequence[tuple[str, bool]]],
 
 
 def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True,
-                   max_rows: int | None = None) -> str:
+                   max_rows: int | None = None, decimals: Decimals = Decimals()) -> str:
     """The cut table as readable HTML: one row per cut, units in the column names.
 
     The headline table shows what a geologist checks first; with ``full`` every column of the
     cut table follows in a collapsible section, as the program wrote it. ``max_rows`` keeps a
     huge field's page readable: the first rows are shown and the page says how many are left
-    out (the CSV or Parquet cut table holds them all).
+    out (the CSV or Parquet cut table holds them all). Numbers are shown at the precision the
+    written tables carry (``decimals``, :mod:`wellfault.precision`).
     """
     if cuts is None or len(cuts) == 0:
         return '<p class="ok">No fault cut found.</p>'
@@ -167,7 +184,7 @@ def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True,
     lu = "ft" if u in ("ft", "usft") else "m"
 
     def col(row, stem):
-        return row.get(f"{stem}_{u}", np.nan)
+        return _cell(row.get(f"{stem}_{u}", np.nan), f"{stem}_{u}", decimals)
 
     headers = ["well", "evidence", f"MD [{lu}]", f"bracket MD [{lu}]", f"TVDSS [{lu}]",
                "section", "fault type", f"TST [{lu}]", f"TVT [{lu}]",
@@ -184,21 +201,21 @@ def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True,
         rows.append([
             (f'<span class="nw">{_esc(row.get("well", ""))}</span>', False),
             (_esc(row.get("method", "")), False),
-            (_fmt(col(row, "md")), True),
-            (f"{_fmt(col(row, 'md_top'))} \u2013 {_fmt(col(row, 'md_base'))}", True),
-            (_fmt(col(row, "tvdss")), True), (_chip(row.get("section", "")), False),
-            (_esc(row.get("fault_type", "")), False), (_fmt(col(row, "tst")), True),
-            (_fmt(col(row, "tvt")), True), (_fmt(col(row, "vertical_separation")), True),
-            (_fmt(col(row, "throw")), True), (_fmt(col(row, "heave")), True),
+            (col(row, "md"), True),
+            (f"{col(row, 'md_top')} \u2013 {col(row, 'md_base')}", True),
+            (col(row, "tvdss"), True), (_chip(row.get("section", "")), False),
+            (_esc(row.get("fault_type", "")), False), (col(row, "tst"), True),
+            (col(row, "tvt"), True), (col(row, "vertical_separation"), True),
+            (col(row, "throw"), True), (col(row, "heave"), True),
             (f'<span class="nw">{_esc(dip_txt)}</span><br><small>{_esc(src)}</small>', False),
             (_esc(str(row.get("crossing", "")).replace(" -> ", " \u2192 ")), False),
             (f"{_esc(row.get('surface_above', ''))} / {_esc(row.get('surface_below', ''))}",
              False),
-            (_fmt(row.get("confidence", np.nan), 2), True),
+            (_cell(row.get("confidence", np.nan), "confidence", decimals), True),
         ])
         note = str(row.get("notes", "") or "").strip()
         if note and note.lower() != "nan":
-            notes.append(f"<li><b>{_esc(row.get('well', ''))}, MD {_fmt(col(row, 'md'))} "
+            notes.append(f"<li><b>{_esc(row.get('well', ''))}, MD {col(row, 'md')} "
                          f"{lu}</b>: {_esc(note)}</li>")
     out = _table(headers, rows, cls="cuts")
     if len(cuts) < n_all:
@@ -207,7 +224,7 @@ def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True,
     if notes:
         out += '<h3>Notes on the cuts</h3><ul class="notes">' + "".join(notes) + "</ul>"
     if full:
-        body = cuts.round(3).to_html(index=False, escape=True, na_rep="", border=0,
+        body = format_table(cuts, decimals).to_html(index=False, escape=True, na_rep="", border=0,
                                      classes="full")
         out += (f"<details><summary>Every column of the cut table ({len(cuts.columns)} "
                 f"columns, as written to CSV)</summary><div class=\"wide\">{body}</div>"
@@ -275,32 +292,36 @@ def _fault_dip_text(cuts: pd.DataFrame) -> str:
     return "; ".join(parts)
 
 
-def _tolerance_text(tolerance) -> str:
+def _tolerance_text(tolerance, unit: DepthUnit = DepthUnit.M,
+                    decimals: Decimals = Decimals()) -> str:
+    def ln(v):
+        return _length(v, unit, decimals)
+
     if tolerance is None:
         return ("not passed to the report; tops evidence defaults are 15 % of the expected "
-                "interval plus a 2 m floor, picks uncertain by 1 m")
+                f"interval plus a {ln(2.0)} floor, picks uncertain by {ln(1.0)}")
     rel = getattr(tolerance, "relative", None)
     floor = getattr(tolerance, "floor_m", None)
     pick = getattr(tolerance, "pick_uncertainty_m", None)
     if rel is None:
         return str(tolerance)
-    txt = f"{100 * rel:g} % of the expected interval plus a {floor:g} m floor"
+    txt = f"{100 * rel:g} % of the expected interval plus a {ln(floor)} floor"
     if pick is not None:
-        txt += f"; picks uncertain by {pick:g} m (brackets widened by it)"
+        txt += f"; picks uncertain by {ln(pick)} (brackets widened by it)"
     return txt
 
 
-def _bed_dip_text(bed_dip) -> str:
+def _bed_dip_text(bed_dip, unit: DepthUnit = DepthUnit.M) -> str:
     if bed_dip is None:
         return "none given: flat beds assumed"
     if isinstance(bed_dip, str):
         return f"{bed_dip} (dip/dip azimuth, degrees)"
     if hasattr(bed_dip, "describe"):
-        return f"{bed_dip.describe()} (dip/dip azimuth, degrees)"
+        return f"{lengths_in_text(bed_dip.describe(), unit)} (dip/dip azimuth, degrees)"
     return str(bed_dip)
 
 
-def _trajectory_text(trajectory) -> str:
+def _trajectory_text(trajectory, unit: DepthUnit = DepthUnit.M) -> str:
     if trajectory is None:
         return "no survey: vertical well below the surface location"
     st = getattr(trajectory, "stations", None)
@@ -309,7 +330,8 @@ def _trajectory_text(trajectory) -> str:
     inc = float(np.nanmax(st["inc_deg"]))
     if inc == 0.0:
         return "vertical (no deviation)"
-    return (f"{len(st)} survey stations, MD {st['md_m'].min():.0f}-{st['md_m'].max():.0f} m, "
+    lo, hi = (float(v) / unit.metres for v in (st["md_m"].min(), st["md_m"].max()))
+    return (f"{len(st)} survey stations, MD {lo:.0f}-{hi:.0f} {unit.suffix}, "
             f"inclination up to {inc:.1f} deg (minimum curvature)")
 
 
@@ -339,13 +361,16 @@ def _summary(cards: Sequence[tuple[str, object]]) -> str:
 def well_report(*, well, column, cuts_df: pd.DataFrame | None, trajectory=None, bed_dip=None,
                 tops: pd.DataFrame | None = None, track: pd.DataFrame | None = None,
                 assumptions=None, errors=None, tolerance=None, curve: str = "GR",
-                title: str | None = None) -> str:
+                title: str | None = None, unit=None, decimals: Decimals = Decimals()) -> str:
     """HTML text of one well's report (see :func:`write_well_report`)."""
     from . import plots
-    from .track import track_from_tops
+    from .track import cuts_in_unit, track_from_tops
 
     name = str(getattr(well, "name", "well"))
     cuts = cuts_df if cuts_df is not None else pd.DataFrame()
+    du = plots.display_unit(unit, cuts if len(cuts.columns) else None, well)
+    if len(cuts.columns):
+        cuts = cuts_in_unit(cuts, du)
     problems: list[str] = []
     if track is None and tops is not None:
         try:
@@ -361,19 +386,18 @@ def well_report(*, well, column, cuts_df: pd.DataFrame | None, trajectory=None, 
                             f"({type(exc).__name__}: {exc})")
     n_missing = int((cuts.get("section", pd.Series(dtype=str)) == "missing").sum())
     n_repeated = int((cuts.get("section", pd.Series(dtype=str)) == "repeated").sum())
-    u = _unit_of(cuts) if len(cuts.columns) else getattr(getattr(well, "depth_unit", None),
-                                                          "value", "m")
     body = [_summary([("cuts", len(cuts)), ("missing section", n_missing),
                       ("repeated section", n_repeated),
                       ("errors met", len(_errors_frame(errors)) + len(problems))])]
     body.append("<h2 id=\"cuts\">Fault cuts</h2>")
-    body.append(f'<p class="sub">Lengths in {_esc(u)}; the bracket is the MD interval in which '
-                "the evidence places the cut. Missing section: strata cut out by the fault; "
-                "repeated: strata drilled twice. The figures are drawn in metres.</p>")
-    body.append(cut_table_html(cuts))
+    body.append(f'<p class="sub">Lengths in {_esc(du.suffix)}, in the table, the figures and '
+                "the text; the bracket is the MD interval in which the evidence places the cut. "
+                "Missing section: strata cut out by the fault; repeated: strata drilled "
+                "twice.</p>")
+    body.append(cut_table_html(cuts, decimals=decimals))
     body.append("<h2 id=\"figures\">Figures</h2>")
     body.append(_figure_or_error(
-        lambda: plots.correlation_panel(well, column, track, cuts, curve=curve),
+        lambda: plots.correlation_panel(well, column, track, cuts, curve=curve, unit=du),
         "The well's curve (left, against MD) beside the type log and the column (right, "
         "against stratigraphic position s). Green tie lines join each surface in the well to "
         "the same surface in the column; each cut's wedge points at the interval of the column "
@@ -381,7 +405,7 @@ def well_report(*, well, column, cuts_df: pd.DataFrame | None, trajectory=None, 
         f"correlation panel of {name}", problems))
     if track is not None:
         body.append(_figure_or_error(
-            lambda: plots.strat_position_plot(track, cuts, column=column, well=name),
+            lambda: plots.strat_position_plot(track, cuts, column=column, well=name, unit=du),
             "Stratigraphic position s against MD: a fault is a step, an arrow from the position "
             "above the cut to the position below. The right panel shows how firmly the evidence "
             "places each depth.", f"stratigraphic position of {name}", problems))
@@ -395,17 +419,17 @@ def well_report(*, well, column, cuts_df: pd.DataFrame | None, trajectory=None, 
         ("well", f"{name} ({getattr(well, 'source', '<memory>')}), depth unit "
                  f"{getattr(getattr(well, 'depth_unit', None), 'value', '?')}, depth reference "
                  f"{getattr(well, 'ref_name', '?')} at "
-                 + (f"{well.ref_elevation_m:g} m above sea level"
+                 + (f"{_length(well.ref_elevation_m, du, decimals)} above sea level"
                     if getattr(well, "ref_elevation_m", None) is not None
                     else "unknown elevation")),
         ("reference column", f"{len(column)} surfaces ({column.names[0]} to "
                              f"{column.names[-1]}), "
                              + ("with a type log" if column.type_log is not None
                                 else "without a type log")),
-        ("well path", _trajectory_text(trajectory)),
-        ("bed dip", _bed_dip_text(bed_dip)),
+        ("well path", _trajectory_text(trajectory, du)),
+        ("bed dip", _bed_dip_text(bed_dip, du)),
         ("fault dip", _fault_dip_text(cuts)),
-        ("thickness tolerance", _tolerance_text(tolerance)),
+        ("thickness tolerance", _tolerance_text(tolerance, du, decimals)),
         ("evidence", (", ".join(methods) if methods else "none reported a cut")
          + (f"; {len(tops)} tops" if tops is not None else "")),
     ]
@@ -423,7 +447,8 @@ def well_report(*, well, column, cuts_df: pd.DataFrame | None, trajectory=None, 
 def write_well_report(path: str | os.PathLike, *, well, column, cuts_df: pd.DataFrame | None,
                       trajectory=None, bed_dip=None, tops: pd.DataFrame | None = None,
                       track: pd.DataFrame | None = None, assumptions=None, errors=None,
-                      tolerance=None, curve: str = "GR", title: str | None = None) -> Path:
+                      tolerance=None, curve: str = "GR", title: str | None = None, unit=None,
+                      decimals: Decimals = Decimals()) -> Path:
     """Write one well's self-contained HTML report to ``path`` (atomically) and return the path.
 
     Parameters
@@ -454,10 +479,16 @@ def write_well_report(path: str | os.PathLike, *, well, column, cuts_df: pd.Data
         The thickness tolerance used.
     curve : str
         Curve for the correlation panel (default GR).
+    unit : "m" or "ft", optional
+        Unit of every length in the report: table, figures and text (default: the cut table's,
+        else the well's depth unit).
+    decimals : Decimals, optional
+        Precision of the numbers shown (:mod:`wellfault.precision`).
     """
     text = well_report(well=well, column=column, cuts_df=cuts_df, trajectory=trajectory,
                        bed_dip=bed_dip, tops=tops, track=track, assumptions=assumptions,
-                       errors=errors, tolerance=tolerance, curve=curve, title=title)
+                       errors=errors, tolerance=tolerance, curve=curve, title=title, unit=unit,
+                       decimals=decimals)
     return write_output(path, text, what="the report")
 
 
@@ -486,11 +517,18 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
                  tracks: Mapping[str, pd.DataFrame] | None = None, column=None,
                  assumptions=None, tolerance=None, bed_dip=None, tvdss_m: float | None = None,
                  max_well_figures: int = 40, max_table_rows: int = 5000,
-                 progress: bool | None = None, title: str | None = None) -> str:
+                 progress: bool | None = None, title: str | None = None, unit=None,
+                 unit_note: str | None = None, decimals: Decimals = Decimals()) -> str:
     """HTML text of a field's report (see :func:`write_field_report`)."""
     from . import plots
+    from .track import cuts_in_unit
 
     c = cuts if cuts is not None else pd.DataFrame()
+    du = plots.display_unit(unit, c if len(c.columns) else None)
+    if len(c.columns):
+        c = cuts_in_unit(c, du)
+    if faults is not None:  # the figures read fault positions in metres
+        faults = cuts_in_unit(pd.DataFrame(faults), "m")
     problems: list[str] = []
     errs = _errors_frame(errors)
     wl = pd.DataFrame(wells).copy() if wells is not None else None
@@ -517,7 +555,7 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
     body.append("<h2 id=\"map\">Map</h2>")
     if wl is not None and {"well", "x_m", "y_m"} <= set(wl.columns):
         body.append(_figure_or_error(
-            lambda: plots.field_map(wl, c, faults, paths=paths, tvdss_m=tvdss_m),
+            lambda: plots.field_map(wl, c, faults, paths=paths, tvdss_m=tvdss_m, unit=du),
             "Wells (open circles, deviated paths in plan), cut points (orange circles: missing "
             "section; blue squares: repeated), posted with their vertical separation, and the "
             "fault traces at one depth with ticks or triangles on the hanging wall.",
@@ -527,20 +565,23 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
                     "the map is left out.</p>")
     if faults is not None and len(faults) and len(c):
         body.append(_figure_or_error(
-            lambda: plots.separation_along_strike(faults, c),
+            lambda: plots.separation_along_strike(faults, c, unit=du),
             "Vertical separation of each cut against its distance along the strike of its "
             "fault: separation should change smoothly along a fault; a cut far off its "
             "neighbours deserves a second look.", "separation along strike", problems))
-        fdf = pd.DataFrame(faults)
+        fdf = cuts_in_unit(pd.DataFrame(faults), du)
         body.append("<h3>Faults</h3>")
         body.append(_table(list(fdf.columns),
-                           [[(_esc(_fmt(v)), isinstance(v, (int, float, np.floating)))
-                             for v in r] for r in fdf.itertuples(index=False)]))
+                           [[(_esc(_cell(v, col, decimals)),
+                              isinstance(v, (int, float, np.floating)))
+                             for col, v in zip(fdf.columns, r)]
+                            for r in fdf.itertuples(index=False)]))
 
     body.append("<h2 id=\"cuts\">Fault cuts</h2>")
-    u = _unit_of(c) if len(c.columns) else "m"
-    body.append(f'<p class="sub">One row per cut in every well; lengths in {_esc(u)}.</p>')
-    body.append(cut_table_html(c, max_rows=max_table_rows))
+    body.append(f'<p class="sub">One row per cut in every well; '
+                f'{_esc(unit_note or f"lengths in {du.suffix}")}, in the tables, the '
+                "figures and the text.</p>")
+    body.append(cut_table_html(c, max_rows=max_table_rows, decimals=decimals))
 
     body.append("<h2 id=\"wells\">Wells</h2>")
     rows = []
@@ -570,7 +611,8 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
             body.append(f'<p class="sub">The first {len(names)} wells with cuts are drawn.</p>')
         for w in _progress(names, len(names), progress, "report figures"):
             body.append(_figure_or_error(
-                lambda w=w: plots.strat_position_plot(tracks[w], c, column=column, well=w),
+                lambda w=w: plots.strat_position_plot(tracks[w], c, column=column, well=w,
+                                                      unit=du),
                 f"{w}: stratigraphic position against MD; a fault is a step.",
                 f"stratigraphic position of {w}", problems))
 
@@ -583,8 +625,10 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
                                    zip(c["bed_dip_deg"], c["bed_dip_azimuth_deg"])
                                    if math.isfinite(d) and math.isfinite(a)})[:12]))),
              ("fault dip", _fault_dip_text(c)),
-             ("thickness tolerance", _tolerance_text(tolerance)),
+             ("thickness tolerance", _tolerance_text(tolerance, du, decimals)),
              ("evidence", ", ".join(methods) if methods else "no cut reported")]
+    if unit_note:
+        items.append(("length unit", unit_note))
     body.append(_assumptions_html(items, assumptions))
     body.append("<h2 id=\"errors\">Errors met</h2>")
     if problems:
@@ -603,7 +647,8 @@ def write_field_report(path: str | os.PathLike, *, cuts: pd.DataFrame | None, er
                        assumptions=None, tolerance=None, bed_dip=None,
                        tvdss_m: float | None = None, max_well_figures: int = 40,
                        max_table_rows: int = 5000, progress: bool | None = None,
-                       title: str | None = None) -> Path:
+                       title: str | None = None, unit=None, unit_note: str | None = None,
+                       decimals: Decimals = Decimals()) -> Path:
     """Write a field's self-contained HTML report to ``path`` (atomically) and return the path.
 
     Parameters
@@ -635,10 +680,18 @@ def write_field_report(path: str | os.PathLike, *, cuts: pd.DataFrame | None, er
     max_table_rows : int
         At most this many rows in each table of the page (cuts, wells, errors); the page says
         how many are left out. The CSV/Parquet tables of the run hold them all.
+    unit : "m" or "ft", optional
+        Unit of every length in the report (default: the cut table's, else metres).
+    unit_note : str, optional
+        A sentence on the unit, shown with the cut table and the assumptions (a screening's
+        ``info["unit_note"]``: it says when the wells were logged in mixed units).
+    decimals : Decimals, optional
+        Precision of the numbers shown (:mod:`wellfault.precision`).
     """
     text = field_report(cuts=cuts, errors=errors, wells=wells, faults=faults, paths=paths,
                         tracks=tracks, column=column, assumptions=assumptions,
                         tolerance=tolerance, bed_dip=bed_dip, tvdss_m=tvdss_m,
                         max_well_figures=max_well_figures, max_table_rows=max_table_rows,
-                        progress=progress, title=title)
+                        progress=progress, title=title, unit=unit, unit_note=unit_note,
+                        decimals=decimals)
     return write_output(path, text, what="the report")

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 
 import pandas as pd
 
+from .precision import lengths_in_text
 from .units import DepthUnit, parse_depth_unit
 
 __all__ = [
@@ -108,7 +109,8 @@ def empty_cut_frame(unit: DepthUnit | str = DepthUnit.M) -> pd.DataFrame:
 
 
 def cuts_to_frame(cuts, unit: DepthUnit | str = DepthUnit.M) -> pd.DataFrame:
-    """Turn :class:`FaultCut` records into the cut table, lengths converted to ``unit``."""
+    """Turn :class:`FaultCut` records into the cut table, lengths converted to ``unit`` (the
+    lengths the notes state too, :func:`wellfault.precision.lengths_in_text`)."""
     u = parse_depth_unit(unit)
     cuts = list(cuts)
     if not cuts:
@@ -120,6 +122,8 @@ def cuts_to_frame(cuts, unit: DepthUnit | str = DepthUnit.M) -> pd.DataFrame:
             v = getattr(c, f)
             if f in LENGTH_FIELDS and v is not None:
                 v = float(v) / u.metres
+            elif f == "notes":
+                v = lengths_in_text(v, u)
             row[_column_name(f, u)] = v
         rows.append(row)
     df = pd.DataFrame(rows, columns=CUT_COLUMNS(u))

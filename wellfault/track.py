@@ -38,7 +38,7 @@ from .dip import BedDip
 from .errors import InputError, input_error
 
 __all__ = ["TRACK_COLUMNS", "check_track", "empty_track", "track_from_tops", "track_steps",
-           "cuts_in_metres"]
+           "cuts_in_metres", "cuts_in_unit"]
 
 #: Columns of a stratigraphic position track, in order.
 TRACK_COLUMNS = ("md_m", "s_m", "unit", "confidence")
@@ -115,6 +115,33 @@ def cuts_in_metres(cuts: pd.DataFrame | None) -> pd.DataFrame:
             if col in df.columns and f not in df.columns:
                 df[col] = pd.to_numeric(df[col], errors="coerce") * factor
                 rename[col] = f
+    return df.rename(columns=rename)
+
+
+def cuts_in_unit(cuts: pd.DataFrame | None, unit) -> pd.DataFrame:
+    """The cut table with every length column in ``unit`` (``md_m`` → ``md_ft``).
+
+    Every column whose name ends in a unit suffix (``_m``, ``_ft``, ``_usft``: the cut table's
+    lengths, and the bracket-end positions a screening adds) is a length; a table already in
+    ``unit`` is returned as a copy.
+    """
+    from .units import parse_depth_unit
+
+    u = parse_depth_unit(unit)
+    if cuts is None:
+        return pd.DataFrame()
+    df = cuts.copy()
+    rename = {}
+    for col in df.columns:
+        stem, _, suffix = str(col).rpartition("_")
+        if not stem or suffix not in ("m", "ft", "usft") or suffix == u.suffix:
+            continue
+        target = f"{stem}_{u.suffix}"
+        if target in df.columns:
+            continue
+        df[col] = pd.to_numeric(df[col], errors="coerce") * (
+            parse_depth_unit(suffix).metres / u.metres)
+        rename[col] = target
     return df.rename(columns=rename)
 
 

@@ -10,6 +10,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
+from .precision import Decimals, column_decimals, lengths_in_text, round_value
 from .results import FaultCut, cuts_to_frame
 from .units import DepthUnit, parse_depth_unit
 
@@ -142,9 +143,14 @@ class WatchEvent:
     summary: dict = field(default_factory=dict)
     cuts: tuple = ()
 
-    def to_dict(self, unit: DepthUnit | str = "m") -> dict:
+    def to_dict(self, unit: DepthUnit | str = "m", decimals: Decimals = Decimals()) -> dict:
         """JSON-ready dict; lengths in ``unit`` with the unit in the key (``bit_md_ft``); cut
-        fields named as in the cut table (:func:`wellfault.results.cuts_to_frame`)."""
+        fields named as in the cut table (:func:`wellfault.results.cuts_to_frame`); numbers at
+        the precision they carry and the lengths in sentences in ``unit`` too
+        (:func:`_formatted`, :mod:`wellfault.precision`)."""
+        return _formatted(self._raw_dict(unit), parse_depth_unit(unit), decimals)
+
+    def _raw_dict(self, unit: DepthUnit | str) -> dict:
         u = parse_depth_unit(unit)
         k = 1.0 / u.metres
         sx = u.suffix
@@ -180,9 +186,29 @@ class WatchEvent:
         return out
 
 
+#: Keys of an event whose text states lengths (in metres, as wellfault writes them).
+_TEXT_KEYS = ("reason", "message", "notes")
+
+
+def _formatted(value, unit: DepthUnit, decimals: Decimals, key: str = ""):
+    """An event dict made ready to print: each number rounded by its key's rule (6 decimals
+    without one), the lengths in its sentences restated in ``unit``. The one place where watch
+    events take their output precision and unit."""
+    if isinstance(value, dict):
+        return {k: _formatted(v, unit, decimals, str(k)) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_formatted(v, unit, decimals, key) for v in value]
+    if isinstance(value, str) and key in _TEXT_KEYS:
+        return lengths_in_text(value, unit, decimals)
+    if isinstance(value, float) and math.isfinite(value):
+        nd = column_decimals(key, decimals)
+        return round_value(value, 6 if nd is None and not decimals.full else nd)
+    return value
+
+
 def _num(v):
     if isinstance(v, (np.floating, float)):
-        return round(float(v), 6) if math.isfinite(float(v)) else None
+        return float(v) if math.isfinite(float(v)) else None
     if isinstance(v, np.integer):
         return int(v)
     if isinstance(v, np.bool_):
