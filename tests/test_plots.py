@@ -87,8 +87,9 @@ def test_correlation_panel_marks_each_cut_by_its_section(name, section):
     fig = plots.correlation_panel(w, col, track, cuts)
     assert fig.__class__.__name__ == "Figure"
     ax_w, ax_t, ax_r, ax_c = fig.axes[:4]
-    assert ax_w.get_ylabel() == "MD [m]"
-    assert "TST" in ax_c.get_ylabel()
+    # lengths in the cut table's unit, here the LAS file's (VR-2, VR-4, VR-6H: feet)
+    assert ax_w.get_ylabel() == f"MD [{w.depth_unit.suffix}]"
+    assert "TST" in ax_c.get_ylabel() and ax_c.get_ylabel().endswith(f"[{w.depth_unit.suffix}]")
     assert ax_w.get_xlabel() == "GR (well)" and ax_r.get_xlabel() == "GR (type log)"
     assert ax_w.get_ylim()[0] > ax_w.get_ylim()[1]  # depth down
     assert ax_r.get_ylim()[0] > ax_r.get_ylim()[1]
@@ -158,7 +159,7 @@ def test_strat_position_plot_shows_each_cut_as_a_step(name, section):
     w, _, _, _, cuts, track, col = demo_well(name)
     fig = plots.strat_position_plot(track, cuts, column=col)
     ax, ax_c = fig.axes[:2]
-    assert ax.get_ylabel() == "MD [m]"
+    assert ax.get_ylabel() == f"MD [{w.depth_unit.suffix}]"  # the cut table's unit
     assert ax.get_xlabel().startswith("s: stratigraphic position")
     assert ax_c.get_xlabel() == "confidence"
     assert ax.get_ylim()[0] > ax.get_ylim()[1]

@@ -126,8 +126,8 @@ def run_demo(folder: Path | None = None, unit: str = "m") -> str:
               f"{right} of {found_total}; cuts reported in all: {len(cuts)}",
               "Evidence used: formation tops against the reference column, with the field's "
               "mapped fault planes for the crossing direction.",
-              f"All lengths in {sx} (wells logged in {' and '.join(logged)}; "
-              f"--output-unit {'ft' if sx == 'm' else 'm'} for {'feet' if sx == 'm' else 'metres'})."]
+              f"All lengths in {sx} (wells logged in {' and '.join(logged)}; --output-unit "
+              "chooses)."]
     return "\n".join(lines)
 
 

@@ -73,7 +73,7 @@ from .faultmap import BRACKET_COLUMNS, FaultFitOptions, FaultMap, fit_faults
 from .io.outputs import output_folder, write_output
 from .measure import FaultPlane
 from .neighbours import NeighbourThickness, thickness_samples
-from .precision import Decimals, round_table
+from .precision import Decimals, lengths_in_text, round_table
 from .results import FaultCut, cuts_to_frame
 from .topcuts import TopsTolerance
 from .units import DepthUnit, parse_depth_unit
@@ -177,7 +177,7 @@ class ScreenResult:
             f"{int(kinds.get('fault', 0))} fitted fault(s), {int(fit.get('no fault', 0))} "
             f"fit no fault, {int(fit.get('possible unconformity', 0))} flagged as possible "
             f"unconformity ({int(kinds.get('possible unconformity', 0))} level(s))",
-            f"thickness: {i.get('thickness_mode', '?')}",
+            f"thickness: {lengths_in_text(i.get('thickness_mode', '?'), i.get('unit', 'm'))}",
         ]
         if i.get("unit_note"):
             lines.append(i["unit_note"])
@@ -1353,10 +1353,11 @@ def _output_unit(unit, well_units) -> tuple[DepthUnit, str]:
         why = "the wells' unit"
     else:
         out = DepthUnit.M
-        why = "the wells mix units" if counts else "no well's unit known"
+        why = ("the default when the wells mix units; --output-unit ft for feet" if counts
+               else "no well's unit known")
     text = f"lengths in {out.suffix} ({why})"
     if len(counts) > 1:
-        text += f"; wells logged in mixed units ({logged}), converted to {out.suffix}"
+        text += f"; the wells were logged in mixed units ({logged}), all converted to {out.suffix}"
     return out, text
 
 
