@@ -16,6 +16,7 @@ from test_plots import FIELD, demo_well, needs_field, texts
 
 from wellfault.cli import main
 from wellfault.precision import (
+    DEFAULT_DECIMALS,
     FULL,
     Decimals,
     column_decimals,
@@ -44,7 +45,7 @@ def _decimals_of(cell: str) -> int:
     return len(cell.split(".")[1]) if "." in cell else 0
 
 
-def assert_columns_at_their_precision(text: str, decimals: Decimals = Decimals()) -> int:
+def assert_columns_at_their_precision(text: str, decimals: Decimals = DEFAULT_DECIMALS) -> int:
     """Every non-empty cell of every column with a rule has exactly the rule's decimals;
     returns how many columns were checked."""
     table = pd.read_csv(io.StringIO(text), dtype=str, keep_default_na=False)
@@ -122,14 +123,14 @@ def vr6h():
 
 def test_detect_table_read_back_carries_each_column_at_its_precision(vr6h, tmp_path):
     out = tmp_path / "cuts.csv"
-    code, stdout, err = _run(*vr6h, "--out", out)
+    code, _, err = _run(*vr6h, "--out", out)
     assert code == 0, err
     text = out.read_text()
     assert "md_ft" in text.splitlines()[0]
     assert assert_columns_at_their_precision(text) >= 20
     # stdout gets the same text
     code, stdout, _ = _run(*vr6h)
-    assert stdout == text
+    assert code == 0 and stdout == text
     # the terminal summary: feet only, at the table's precision
     assert "lengths in ft" in err and not METRE_LABEL.search(err.split("CAUTION")[0])
     md = pd.read_csv(out)["md_ft"].iloc[0]
@@ -211,7 +212,7 @@ def test_screen_in_feet_writes_parquet_at_the_same_precision(tmp_path):
 
 # ------------------------------------------------------------------------ reports, figures
 def _page_text(page: str) -> str:
-    page = re.sub(r"<style>.*?</style>", " ", page, flags=re.S)
+    page = re.sub(r"<style>.*?</style>", " ", page, flags=re.DOTALL)
     page = re.sub(r"<img[^>]*>", " ", page)
     return html.unescape(re.sub(r"<[^>]+>", " ", page))
 
@@ -220,7 +221,7 @@ def _report_with_figures(monkeypatch, make) -> tuple[str, list[str]]:
     """The report's text, and every text drawn on its figures (tick labels included)."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
 
-    import wellfault.report as report
+    from wellfault import report
 
     drawn: list[str] = []
 
@@ -348,6 +349,7 @@ def test_watch_text_of_a_feet_well_says_feet_only(watch_args):
 
 def test_watch_in_metres_writes_metres(watch_args):
     code, out, err = _run(*watch_args, "--output-unit", "m", "--jsonl")
+    assert code == 0, err
     cut = next(json.loads(line) for line in out.splitlines() if '"cut"' in line)
     assert "md_m" in cut and "md_ft" not in cut and round(cut["md_m"], 2) == cut["md_m"]
 

@@ -15,7 +15,7 @@ from . import CAUTION, __version__
 from .cli_screen import add_screen_parser
 from .cli_watch import add_watch_parser
 from .errors import WellfaultError, WellfaultWarning
-from .precision import DECIMALS_HELP, Decimals, decimals_option
+from .precision import DECIMALS_HELP, DEFAULT_DECIMALS, Decimals, decimals_option
 
 __all__ = ["main"]
 
@@ -68,7 +68,7 @@ def _add_detect(sub):
     p.add_argument("--output-unit", choices=["m", "ft"],
                    help="length unit of the cut table, the summary and the report (default: "
                         "the LAS file's unit)")
-    p.add_argument("--decimals", type=decimals_option, default=Decimals(), metavar="N|full",
+    p.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS, metavar="N|full",
                    help=DECIMALS_HELP)
     p.add_argument("--tolerance", type=float, default=0.15, metavar="FRACTION",
                    help="relative thickness tolerance for tops (default 0.15)")
@@ -92,7 +92,7 @@ def _add_survey(sub):
                    help="unit of the MD column when its name does not state it")
     p.add_argument("--output-unit", choices=["m", "ft"],
                    help="unit of the output (default: the survey's unit)")
-    p.add_argument("--decimals", type=decimals_option, default=Decimals(), metavar="N|full",
+    p.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS, metavar="N|full",
                    help=DECIMALS_HELP)
     p.set_defaults(func=_cmd_survey)
 
@@ -152,7 +152,7 @@ def _cmd_survey(args) -> int:
     return EXIT_OK
 
 
-def _summarise(df, unit_suffix: str, decimals: Decimals = Decimals()) -> str:
+def _summarise(df, unit_suffix: str, decimals: Decimals = DEFAULT_DECIMALS) -> str:
     """One line per cut, lengths in the table's unit at the table's precision."""
     from .precision import column_decimals
 

@@ -15,7 +15,7 @@ import sys
 
 from . import CAUTION
 from .errors import InputError, WellfaultError
-from .precision import DECIMALS_HELP, Decimals, decimals_option
+from .precision import DECIMALS_HELP, DEFAULT_DECIMALS, decimals_option
 
 __all__ = ["add_screen_parser", "cmd_screen", "main"]
 
@@ -62,7 +62,7 @@ def add_screen_parser(subparsers) -> argparse.ArgumentParser:
                    help="length unit of the tables, the summary and the report (default: the "
                         "wells' unit when their LAS files share one, else m; a field in mixed "
                         "units says so)")
-    p.add_argument("--decimals", type=decimals_option, default=Decimals(), metavar="N|full",
+    p.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS, metavar="N|full",
                    help=DECIMALS_HELP)
     p.add_argument("--depth-unit", choices=["m", "ft", "usft"],
                    help="depth unit of files that state none (the manifest's depth_unit "

@@ -31,7 +31,14 @@ import warnings
 
 from . import CAUTION
 from .errors import InputError, WellfaultError, WellfaultWarning
-from .precision import DECIMALS_HELP, Decimals, decimals_option, format_length, lengths_in_text
+from .precision import (
+    DECIMALS_HELP,
+    DEFAULT_DECIMALS,
+    Decimals,
+    decimals_option,
+    format_length,
+    lengths_in_text,
+)
 
 __all__ = ["add_watch_parser", "cmd_watch", "main"]
 
@@ -75,7 +82,7 @@ def add_watch_parser(subparsers) -> argparse.ArgumentParser:
                    help="depth unit of files that do not state one")
     p.add_argument("--output-unit", choices=["m", "ft"],
                    help="length unit of the output (default: the log's)")
-    p.add_argument("--decimals", type=decimals_option, default=Decimals(), metavar="N|full",
+    p.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS, metavar="N|full",
                    help=DECIMALS_HELP)
     p.add_argument("--jsonl", action="store_true",
                    help="write one JSON object per line to stdout instead of text")
@@ -96,7 +103,7 @@ def add_watch_parser(subparsers) -> argparse.ArgumentParser:
 
 # -------------------------------------------------------------------------------- printers
 class _JsonPrinter:
-    def __init__(self, unit, decimals: Decimals = Decimals()) -> None:
+    def __init__(self, unit, decimals: Decimals = DEFAULT_DECIMALS) -> None:
         self.unit = unit
         self.decimals = decimals
 
@@ -117,7 +124,7 @@ class _JsonPrinter:
 
 
 class _TextPrinter(_JsonPrinter):
-    def __init__(self, unit, every_m: float, decimals: Decimals = Decimals()) -> None:
+    def __init__(self, unit, every_m: float, decimals: Decimals = DEFAULT_DECIMALS) -> None:
         super().__init__(unit, decimals)
         self.k = 1.0 / unit.metres
         self.sx = unit.suffix

@@ -240,8 +240,8 @@ def make_demo_field(folder: str | Path, *, seed: int = DEFAULT_SEED) -> dict[str
         Paths written, by name.
     """
     from .io import write_las, write_table
-    from .precision import FULL  # the field's input files, written as drawn
     from .io.outputs import output_folder, write_output
+    from .precision import FULL  # the field's input files, written as drawn
 
     folder = Path(folder)
     output_folder(folder, what="the field folder")

@@ -88,7 +88,7 @@ def display_unit(unit=None, cuts: pd.DataFrame | None = None, well=None) -> Dept
     return parse_depth_unit(wu) if wu is not None else DepthUnit.M
 
 
-def _length_locator(per_m: float):
+def _length_locator(per_m: float, prune: str | None = None):
     from matplotlib.ticker import MaxNLocator
 
     class _Locator(MaxNLocator):
@@ -97,7 +97,7 @@ def _length_locator(per_m: float):
         def tick_values(self, vmin, vmax):
             return np.asarray(super().tick_values(vmin * per_m, vmax * per_m)) / per_m
 
-    return _Locator(nbins="auto", steps=[1, 2, 2.5, 5, 10])
+    return _Locator(nbins="auto", steps=[1, 2, 2.5, 5, 10], prune=prune)
 
 
 def _tick_text(x: float) -> str:
@@ -105,13 +105,14 @@ def _tick_text(x: float) -> str:
     return "0" if text in ("-0", "") else text
 
 
-def length_axis(axis, unit: DepthUnit, label: str) -> None:
+def length_axis(axis, unit: DepthUnit, label: str, *, prune: str | None = None) -> None:
     """Tick and label a matplotlib axis whose data are metres in ``unit``: round ticks in
-    ``unit`` and ``label [unit]``."""
+    ``unit`` and ``label [unit]`` (``prune="upper"`` leaves out the last tick, where a panel
+    beside the axis would write over it)."""
     from matplotlib.ticker import FuncFormatter
 
     per_m = 1.0 / unit.metres
-    axis.set_major_locator(_length_locator(per_m))
+    axis.set_major_locator(_length_locator(per_m, prune))
     axis.set_major_formatter(FuncFormatter(lambda v, _pos: _tick_text(v * per_m)))
     axis.set_label_text(f"{label} [{unit.suffix}]")
 
@@ -338,8 +339,8 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
     unit : "m" or "ft", optional
         Unit of the axes and labels (default: the cut table's, else the well's).
     """
-    from matplotlib.patches import Polygon
     from matplotlib.lines import Line2D
+    from matplotlib.patches import Polygon
     from matplotlib.transforms import blended_transform_factory
 
     name = str(getattr(well, "name", "well"))
@@ -386,8 +387,8 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
     # ---- well track
     ax_w.set_ylim(md_hi, md_lo)
     if t is not None:
-        for unit, a, b in _unit_runs(t):
-            ax_w.axhspan(a, b, color=colours.get(unit, "#eeeeee"), lw=0, zorder=0)
+        for band, a, b in _unit_runs(t):
+            ax_w.axhspan(a, b, color=colours.get(band, "#eeeeee"), lw=0, zorder=0)
     if cname is not None:
         sel = (curves.index >= md_lo) & (curves.index <= md_hi)
         ax_w.plot(curves[cname].to_numpy(float)[sel], curves.index.to_numpy(float)[sel],
@@ -404,9 +405,9 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
     # ---- type log and column
     ax_r.set_ylim(s_hi, s_lo)
     tl = getattr(column, "type_log", None)
-    for unit, a, b in units:
-        ax_r.axhspan(a, b, color=colours[unit], lw=0, zorder=0)
-        ax_c.axhspan(a, b, facecolor=colours[unit], edgecolor=INK, lw=0.6, zorder=0)
+    for band, a, b in units:
+        ax_r.axhspan(a, b, color=colours[band], lw=0, zorder=0)
+        ax_c.axhspan(a, b, facecolor=colours[band], edgecolor=INK, lw=0.6, zorder=0)
         ax_r.axhline(a, color=INK, lw=0.4, alpha=0.6, zorder=1)
     tname = _curve_name(tl, cname if cname is not None else curve) if tl is not None else None
     if tl is not None and tname is None and tl.shape[1]:
@@ -443,14 +444,14 @@ def correlation_panel(well, column, track: pd.DataFrame | None, cuts: pd.DataFra
     ax_c.tick_params(axis="y", labelright=True, labelleft=False, left=False)
     fig_h_pt = fig.get_figheight() * 72 * (0.905 - 0.085)
     pt_per_m = fig_h_pt / (s_hi - s_lo)
-    for unit, a, b in units:
+    for band, a, b in units:
         lo, hi = max(a, s_lo), min(b, s_hi)
         if hi - lo <= 0:
             continue
         size = 7.5 if (hi - lo) * pt_per_m >= 9 else 6.0
         if (hi - lo) * pt_per_m < 6.5:
             continue
-        ax_c.text(0.5, 0.5 * (lo + hi), unit, ha="center", va="center", fontsize=size,
+        ax_c.text(0.5, 0.5 * (lo + hi), band, ha="center", va="center", fontsize=size,
                   color=INK, clip_on=True, wrap=False)
 
     # ---- tie gap (its own 0..1 coordinates; y maps to both tracks' windows)
@@ -620,20 +621,20 @@ def strat_position_plot(track: pd.DataFrame, cuts: pd.DataFrame | None = None, *
         bands = []
         u = t.dropna(subset=["s_m"])
         u = u[u["unit"].notna()]
-        for unit, g in u.groupby("unit", sort=False):
-            bands.append((str(unit), float(g["s_m"].min()), float(g["s_m"].max())))
+        for band, g in u.groupby("unit", sort=False):
+            bands.append((str(band), float(g["s_m"].min()), float(g["s_m"].max())))
         bands.sort(key=lambda b: b[1])
         colours = unit_colours([b[0] for b in bands])
     width_pt = fig.get_figwidth() * 72 * (0.97 - 0.1) * 5.0 / 5.9
     pt_per_m = width_pt / (s_hi - s_lo)
-    for unit, a, b in bands:
+    for band, a, b in bands:
         lo, hi = max(a, s_lo), min(b, s_hi)
         if hi <= lo:
             continue
-        ax.axvspan(a, b, color=colours.get(unit, "#eeeeee"), lw=0, zorder=0)
+        ax.axvspan(a, b, color=colours.get(band, "#eeeeee"), lw=0, zorder=0)
         ax.axvline(a, color=INK, lw=0.4, alpha=0.5, zorder=0.5)
         if (hi - lo) * pt_per_m >= 8:
-            ax.text(0.5 * (lo + hi), 1.008, unit, rotation=90, ha="center", va="bottom",
+            ax.text(0.5 * (lo + hi), 1.008, band, rotation=90, ha="center", va="bottom",
                     fontsize=7.5, color=INK, transform=ax.get_xaxis_transform())
     ax.plot(s_l, md_l, color=INK, lw=1.4, zorder=3, label="_track")
 
@@ -674,7 +675,8 @@ def strat_position_plot(track: pd.DataFrame, cuts: pd.DataFrame | None = None, *
         xy = np.array(pts)
         ax.scatter(xy[:, 0], xy[:, 1], marker=st["marker"], s=40, color=st["colour"],
                    edgecolor="white", lw=0.8, zorder=5, gid=f"cut-{sec}")
-    length_axis(ax.xaxis, du, "s: stratigraphic position, TST below the top of the column")
+    length_axis(ax.xaxis, du, "s: stratigraphic position, TST below the top of the column",
+                prune="upper")
     ax.set_xlabel(ax.xaxis.get_label_text() + "   (down-section \u2192)")
     length_axis(ax.yaxis, du, "MD")
     ax.grid(color="white", lw=0.6, alpha=0.8)

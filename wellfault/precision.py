@@ -36,9 +36,9 @@ from dataclasses import dataclass
 from .errors import InputError
 from .units import DepthUnit, parse_depth_unit
 
-__all__ = ["Decimals", "parse_decimals", "decimals_option", "column_decimals", "round_table",
-           "table_text", "format_table", "round_value", "format_length", "lengths_in_text", "FULL",
-           "DECIMALS_HELP"]
+__all__ = ["DECIMALS_HELP", "DEFAULT_DECIMALS", "FULL", "Decimals", "column_decimals",
+           "decimals_option", "format_length", "format_table", "lengths_in_text", "parse_decimals",
+           "round_table", "round_value", "table_text"]
 
 #: Length decimals by unit suffix: 0.01 m, 0.1 ft.
 LENGTH_DECIMALS = {"m": 2, "ft": 1, "usft": 1}
@@ -82,6 +82,8 @@ class Decimals:
 
 #: Full precision: nothing rounded.
 FULL = Decimals(full=True)
+#: The default rules (0.01 m, 0.1 ft, 0.1 degree, confidence 2 decimals).
+DEFAULT_DECIMALS = Decimals()
 
 
 def parse_decimals(text: str | int | Decimals | None) -> Decimals:
@@ -99,7 +101,7 @@ def parse_decimals(text: str | int | Decimals | None) -> Decimals:
     return Decimals(length=int(t))
 
 
-def column_decimals(name: str, decimals: Decimals = Decimals()) -> int | None:
+def column_decimals(name: str, decimals: Decimals = DEFAULT_DECIMALS) -> int | None:
     """Decimals of the numbers in column ``name``; None: written as they are."""
     if decimals.full:
         return None
@@ -126,7 +128,7 @@ def round_value(value, nd: int | None):
     return round(v, nd) + 0.0 if math.isfinite(v) else v
 
 
-def round_table(df, decimals: Decimals = Decimals()):
+def round_table(df, decimals: Decimals = DEFAULT_DECIMALS):
     """A copy of DataFrame ``df``, each float column rounded by its rule (for typed formats)."""
     import pandas as pd
 
@@ -150,7 +152,7 @@ def _fixed(values, nd: int):
     return pd.Series(text, index=values.index, dtype=object)
 
 
-def format_table(df, decimals: Decimals = Decimals()):
+def format_table(df, decimals: Decimals = DEFAULT_DECIMALS):
     """A copy of DataFrame ``df``, each float column with a rule turned into text with that
     rule's fixed decimals (missing values: empty text); other columns as they are."""
     import pandas as pd
@@ -163,7 +165,7 @@ def format_table(df, decimals: Decimals = Decimals()):
     return out
 
 
-def table_text(df, decimals: Decimals = Decimals(), *, index: bool = False) -> str:
+def table_text(df, decimals: Decimals = DEFAULT_DECIMALS, *, index: bool = False) -> str:
     """CSV text of DataFrame ``df``, numbers at the precision they carry (:func:`format_table`).
 
     This is where a table becomes text: the one place its precision is set.
@@ -171,7 +173,7 @@ def table_text(df, decimals: Decimals = Decimals(), *, index: bool = False) -> s
     return format_table(df, decimals).to_csv(index=index, lineterminator="\n")
 
 
-def format_length(value_m, unit: DepthUnit | str, decimals: Decimals = Decimals(), *,
+def format_length(value_m, unit: DepthUnit | str, decimals: Decimals = DEFAULT_DECIMALS, *,
                   sign: bool = False, label: bool = True) -> str:
     """A length given in metres, written in ``unit`` with its decimals (``"9536.5 ft"``).
 
@@ -201,7 +203,7 @@ def _restate(num: str, unit: DepthUnit, decimals: Decimals) -> str:
     return f"{round(v, nd) + 0.0:{'+' if num.startswith('+') else ''}.{nd}f}"
 
 
-def lengths_in_text(text: str, unit: DepthUnit | str, decimals: Decimals = Decimals()) -> str:
+def lengths_in_text(text: str, unit: DepthUnit | str, decimals: Decimals = DEFAULT_DECIMALS) -> str:
     """Restate the lengths in a sentence wellfault wrote (``"MD 2907.12 m"``) in ``unit``.
 
     wellfault's sentences state lengths in metres as ``<number> m``, ranges as ``a-b m`` or

@@ -29,9 +29,15 @@ import numpy as np
 import pandas as pd
 
 from . import CAUTION, __version__
-from .errors import InputError
 from .io.outputs import write_output
-from .precision import Decimals, column_decimals, format_length, format_table, lengths_in_text
+from .precision import (
+    DEFAULT_DECIMALS,
+    Decimals,
+    column_decimals,
+    format_length,
+    format_table,
+    lengths_in_text,
+)
 from .units import DepthUnit
 
 __all__ = ["well_report", "write_well_report", "field_report", "write_field_report",
@@ -166,7 +172,7 @@ def _table(headers: Sequence[str], rows: Sequence[Sequence[tuple[str, bool]]],
 
 
 def cut_table_html(cuts: pd.DataFrame | None, *, full: bool = True,
-                   max_rows: int | None = None, decimals: Decimals = Decimals()) -> str:
+                   max_rows: int | None = None, decimals: Decimals = DEFAULT_DECIMALS) -> str:
     """The cut table as readable HTML: one row per cut, units in the column names.
 
     The headline table shows what a geologist checks first; with ``full`` every column of the
@@ -293,7 +299,7 @@ def _fault_dip_text(cuts: pd.DataFrame) -> str:
 
 
 def _tolerance_text(tolerance, unit: DepthUnit = DepthUnit.M,
-                    decimals: Decimals = Decimals()) -> str:
+                    decimals: Decimals = DEFAULT_DECIMALS) -> str:
     def ln(v):
         return _length(v, unit, decimals)
 
@@ -361,7 +367,7 @@ def _summary(cards: Sequence[tuple[str, object]]) -> str:
 def well_report(*, well, column, cuts_df: pd.DataFrame | None, trajectory=None, bed_dip=None,
                 tops: pd.DataFrame | None = None, track: pd.DataFrame | None = None,
                 assumptions=None, errors=None, tolerance=None, curve: str = "GR",
-                title: str | None = None, unit=None, decimals: Decimals = Decimals()) -> str:
+                title: str | None = None, unit=None, decimals: Decimals = DEFAULT_DECIMALS) -> str:
     """HTML text of one well's report (see :func:`write_well_report`)."""
     from . import plots
     from .track import cuts_in_unit, track_from_tops
@@ -448,7 +454,7 @@ def write_well_report(path: str | os.PathLike, *, well, column, cuts_df: pd.Data
                       trajectory=None, bed_dip=None, tops: pd.DataFrame | None = None,
                       track: pd.DataFrame | None = None, assumptions=None, errors=None,
                       tolerance=None, curve: str = "GR", title: str | None = None, unit=None,
-                      decimals: Decimals = Decimals()) -> Path:
+                      decimals: Decimals = DEFAULT_DECIMALS) -> Path:
     """Write one well's self-contained HTML report to ``path`` (atomically) and return the path.
 
     Parameters
@@ -518,7 +524,7 @@ def field_report(*, cuts: pd.DataFrame | None, errors=None, wells: pd.DataFrame 
                  assumptions=None, tolerance=None, bed_dip=None, tvdss_m: float | None = None,
                  max_well_figures: int = 40, max_table_rows: int = 5000,
                  progress: bool | None = None, title: str | None = None, unit=None,
-                 unit_note: str | None = None, decimals: Decimals = Decimals()) -> str:
+                 unit_note: str | None = None, decimals: Decimals = DEFAULT_DECIMALS) -> str:
     """HTML text of a field's report (see :func:`write_field_report`)."""
     from . import plots
     from .track import cuts_in_unit
@@ -648,7 +654,7 @@ def write_field_report(path: str | os.PathLike, *, cuts: pd.DataFrame | None, er
                        tvdss_m: float | None = None, max_well_figures: int = 40,
                        max_table_rows: int = 5000, progress: bool | None = None,
                        title: str | None = None, unit=None, unit_note: str | None = None,
-                       decimals: Decimals = Decimals()) -> Path:
+                       decimals: Decimals = DEFAULT_DECIMALS) -> Path:
     """Write a field's self-contained HTML report to ``path`` (atomically) and return the path.
 
     Parameters

@@ -73,7 +73,7 @@ from .faultmap import BRACKET_COLUMNS, FaultFitOptions, FaultMap, fit_faults
 from .io.outputs import output_folder, write_output
 from .measure import FaultPlane
 from .neighbours import NeighbourThickness, thickness_samples
-from .precision import Decimals, lengths_in_text, round_table
+from .precision import DEFAULT_DECIMALS, Decimals, lengths_in_text, round_table
 from .results import FaultCut, cuts_to_frame
 from .topcuts import TopsTolerance
 from .units import DepthUnit, parse_depth_unit
@@ -184,7 +184,7 @@ class ScreenResult:
         return "\n".join(lines)
 
     def write(self, out_dir: str | os.PathLike, fmt: str = "csv",
-              decimals: Decimals = Decimals()) -> dict[str, Path]:
+              decimals: Decimals = DEFAULT_DECIMALS) -> dict[str, Path]:
         """Write the tables (:data:`OUTPUT_FILES`) into ``out_dir``, each replaced atomically,
         numbers at the precision they carry (:mod:`wellfault.precision`)."""
         return _write_tables(self, Path(out_dir), fmt, decimals)
@@ -950,7 +950,7 @@ def _convert_lengths(df: pd.DataFrame, unit: DepthUnit) -> pd.DataFrame:
 
 
 def _write_tables(result: ScreenResult, folder: Path, fmt: str,
-                  decimals: Decimals = Decimals()) -> dict[str, Path]:
+                  decimals: Decimals = DEFAULT_DECIMALS) -> dict[str, Path]:
     from .io import write_table
 
     fmt = str(fmt).lower()
@@ -1002,7 +1002,7 @@ def screen_wells(
     out_dir: str | os.PathLike | None = None,
     fmt: str = "csv",
     resume: bool = False,
-    decimals: Decimals = Decimals(),
+    decimals: Decimals = DEFAULT_DECIMALS,
 ) -> ScreenResult:
     """Screen every well of a field for fault cuts and assemble the cuts into faults.
 

@@ -10,7 +10,13 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
-from .precision import Decimals, column_decimals, lengths_in_text, round_value
+from .precision import (
+    DEFAULT_DECIMALS,
+    Decimals,
+    column_decimals,
+    lengths_in_text,
+    round_value,
+)
 from .results import FaultCut, cuts_to_frame
 from .units import DepthUnit, parse_depth_unit
 
@@ -143,7 +149,7 @@ class WatchEvent:
     summary: dict = field(default_factory=dict)
     cuts: tuple = ()
 
-    def to_dict(self, unit: DepthUnit | str = "m", decimals: Decimals = Decimals()) -> dict:
+    def to_dict(self, unit: DepthUnit | str = "m", decimals: Decimals = DEFAULT_DECIMALS) -> dict:
         """JSON-ready dict; lengths in ``unit`` with the unit in the key (``bit_md_ft``); cut
         fields named as in the cut table (:func:`wellfault.results.cuts_to_frame`); numbers at
         the precision they carry and the lengths in sentences in ``unit`` too

@@ -38,7 +38,7 @@ from ..errors import (
     WellfaultWarning,
     input_error,
 )
-from ..precision import FULL, Decimals, table_text
+from ..precision import DEFAULT_DECIMALS, FULL, Decimals, table_text
 from ..units import DepthUnit, parse_depth_unit
 from .outputs import write_output
 
@@ -998,7 +998,7 @@ def read_manifest(
 
 
 def write_table(df: pd.DataFrame, path: PathLike, *, index: bool = False,
-                float_format: str | None = None, decimals: Decimals = Decimals()) -> Path:
+                float_format: str | None = None, decimals: Decimals = DEFAULT_DECIMALS) -> Path:
     """Write a DataFrame as UTF-8 CSV (:func:`~wellfault.io.outputs.write_output`).
 
     Numbers are written at the precision they carry (:mod:`wellfault.precision`: 0.01 m or
