@@ -8,6 +8,7 @@ import html
 import io
 import json
 import re
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -30,6 +31,13 @@ from wellfault.precision import (
 METRE_LABEL = re.compile(r"(?<![\w.])\d[\d,]*(?:\.\d+)?\s?m\b(?![/²³])|\[m\]|\bmet(?:re|er)s?\b")
 #: A length labelled in feet.
 FEET_LABEL = re.compile(r"\bft\b|\bfeet\b|\bfoot\b")
+
+
+def _field() -> Path:
+    """The demo field's folder (the test is skipped without it)."""
+    if not (FIELD / "field.json").is_file():
+        pytest.skip("demo field synthetic_wells/ not in the checkout")
+    return FIELD
 
 
 def _run(*argv) -> tuple[int, str, str]:
@@ -113,9 +121,7 @@ def test_lengths_in_sentences_are_restated_in_feet():
 # ------------------------------------------------------------------ detect and the summary
 @pytest.fixture(scope="module")
 def vr6h():
-    d = FIELD
-    if not (d / "field.json").is_file():
-        pytest.skip("demo field synthetic_wells/ not in the checkout")
+    d = _field()
     return ["detect", d / "VR_6H.las", "--tops", d / "tops.csv", "--survey",
             d / "VR_6H_survey.csv", "--dip", "8/070", "--column", d / "column.csv",
             "--fault", "60/250"]
@@ -165,8 +171,7 @@ def test_bad_decimals_is_a_usage_error(vr6h):
 def screened(tmp_path_factory):
     from wellfault.screen import screen_wells
 
-    if not (FIELD / "field.json").is_file():
-        pytest.skip("demo field synthetic_wells/ not in the checkout")
+    _field()
     out = tmp_path_factory.mktemp("screen")
     r = screen_wells(FIELD / "manifest.csv", FIELD / "column.csv", workers=1, progress=False,
                      out_dir=out)
@@ -199,8 +204,7 @@ def test_screen_in_feet_writes_parquet_at_the_same_precision(tmp_path):
     pytest.importorskip("pyarrow")
     from wellfault.screen import screen_wells
 
-    if not (FIELD / "field.json").is_file():
-        pytest.skip("demo field synthetic_wells/ not in the checkout")
+    _field()
     r = screen_wells(FIELD / "manifest.csv", FIELD / "column.csv", workers=1, progress=False,
                      out_dir=tmp_path, fmt="parquet", unit="ft", neighbours=False)
     cuts = pd.read_parquet(tmp_path / "cuts.parquet")
@@ -304,9 +308,7 @@ def test_field_report_of_mixed_units_says_which_unit_and_draws_in_it(monkeypatch
 # ---------------------------------------------------------------------------------- watch
 @pytest.fixture(scope="module")
 def watch_args():
-    d = FIELD
-    if not (d / "field.json").is_file():
-        pytest.skip("demo field synthetic_wells/ not in the checkout")
+    d = _field()
     return ["watch", d / "VR_6H.las", "--type-well", d / "VR_1.las", "--type-tops",
             d / "tops.csv", "--column", d / "column.csv", "--survey", d / "VR_6H_survey.csv",
             "--dip", "8/070", "--once"]
@@ -355,8 +357,7 @@ def test_watch_in_metres_writes_metres(watch_args):
 
 
 def test_demo_prints_in_the_unit_asked_for():
-    if not (FIELD / "field.json").is_file():
-        pytest.skip("demo field synthetic_wells/ not in the checkout")
+    _field()
     code, out, _ = _run("demo", "--field", FIELD, "--output-unit", "ft")
     assert code == 0 and "All lengths in ft" in out and "MD [bracket] ft" in out
     assert not METRE_LABEL.search(out)
