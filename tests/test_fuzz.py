@@ -31,6 +31,15 @@ from wellfault.detect import find_fault_cuts
 from wellfault.dip import BedDip
 from wellfault.errors import WellfaultError, WellfaultWarning
 from wellfault.io import read_column_table, read_dip_table, read_las, read_survey, read_tops
+from wellfault.mutations import (
+    KINDS,
+    ODD_NUMBERS,
+    SEPARATORS,
+    STRAY_LINES,
+    TYPO_ALPHABET,
+    UNIT_SWAPS,
+    mutate,
+)
 from wellfault.trajectory import Trajectory
 
 EXAMPLES = int(os.environ.get("WELLFAULT_FUZZ_EXAMPLES", "60"))
@@ -71,105 +80,32 @@ DIPS = "md_m,dip,dip_azimuth\n1000,5,90\n1050,7.5,100\n1100,6,80\n"
 
 # ---------------------------------------------------------------------------- mutations
 
-_ODD_NUMBERS = ["nan", "NaN", "inf", "-inf", "1e308", "-1e308", "1e-320", "0", "-0", "-5",
-                "-999.25", "-9999", "99999999999999999999", "1,5", "1.2.3", "", " ", "abc",
-                "0x10", "1e", "+", "−3"]
-_UNIT_SWAPS = [(".M ", ".FT "), (".M ", ". "), (".M ", ".FURLONG "), ("_m,", "_ft,"),
-               ("_m\n", "\n"), ("md_m", "md"), ("md_m", "md (fathoms)"), ("thickness_m", "thick"),
-               ("md_m", "MD [ft]"), ("_deg", "_rad"), ("M ", "m ")]
-
-
 @st.composite
 def mutations(draw) -> list[tuple]:
-    """A short list of (kind, a, b) edits; a and b are positions or payloads."""
-    kinds = st.sampled_from(["delete", "duplicate", "swap", "flip", "typo", "truncate", "unit",
-                             "separator", "bom", "number", "blank", "crlf", "insert_line",
-                             "tilde"])
+    """A short list of (kind, a, b) edits (wellfault.mutations); a and b are positions or
+    payloads."""
     out = []
     for _ in range(draw(st.integers(1, 4))):
-        kind = draw(kinds)
+        kind = draw(st.sampled_from(KINDS))
         a = draw(st.integers(0, 10**6))
         if kind == "number":
-            b = draw(st.one_of(st.sampled_from(_ODD_NUMBERS),
+            b = draw(st.one_of(st.sampled_from(ODD_NUMBERS),
                                st.floats(allow_nan=True, allow_infinity=True).map(repr),
                                st.integers(-10**12, 10**12).map(str)))
         elif kind == "typo":
-            b = draw(st.text(alphabet="aO lI,;.-+eE\t\"#~:", min_size=1, max_size=3))
+            b = draw(st.text(alphabet=TYPO_ALPHABET, min_size=1, max_size=3))
         elif kind == "flip":
             b = draw(st.integers(1, 255))
         elif kind == "unit":
-            b = draw(st.sampled_from(range(len(_UNIT_SWAPS))))
+            b = draw(st.sampled_from(range(len(UNIT_SWAPS))))
         elif kind == "separator":
-            b = draw(st.sampled_from([";", "\t", " ", ";;"]))
+            b = draw(st.sampled_from(SEPARATORS))
         elif kind == "insert_line":
-            b = draw(st.sampled_from(["", "#", "~A", "~Curve", "A,1", "F-1,A,1e400",
-                                      "1000.0 1 1", "-999.25 -999.25 -999.25", ",,,", "\"",
-                                      "well,surface,md_m", "~Version", "WRAP. YES : wrapped",
-                                      "VERS. 3.0 : v3", "NULL. nan : null", "STEP.M 0 : s"]))
+            b = draw(st.sampled_from(STRAY_LINES))
         else:
             b = draw(st.integers(0, 10**6))
         out.append((kind, a, b))
     return out
-
-
-def _numbers(text: str) -> list[tuple[int, int]]:
-    import re
-
-    return [m.span() for m in re.finditer(r"[-+]?\d+(?:\.\d*)?(?:[eE][-+]?\d+)?", text)]
-
-
-def mutate(data: bytes, edits: list[tuple]) -> bytes:
-    """Apply the edits to a file's bytes."""
-    for kind, a, b in edits:
-        lines = data.split(b"\n")
-        n = len(lines)
-        if kind == "delete" and n > 1:
-            del lines[a % n]
-        elif kind == "duplicate":
-            lines.insert(a % n, lines[a % n])
-        elif kind == "swap" and n > 1:
-            i, j = a % n, b % n
-            lines[i], lines[j] = lines[j], lines[i]
-        elif kind == "flip" and data:
-            buf = bytearray(data)
-            buf[a % len(buf)] ^= b
-            data = bytes(buf)
-            continue
-        elif kind == "typo" and data:
-            k = a % (len(data) + 1)
-            data = data[:k] + b.encode() + data[k:]
-            continue
-        elif kind == "truncate":
-            data = data[: a % (len(data) + 1)]
-            continue
-        elif kind == "unit":
-            old, new = _UNIT_SWAPS[b]
-            data = data.replace(old.encode(), new.encode(), 1 + a % 3)
-            continue
-        elif kind == "separator":
-            data = data.replace(b",", b.encode()) if a % 2 else data.replace(b" ", b.encode())
-            continue
-        elif kind == "bom":
-            data = (b"\xef\xbb\xbf" if a % 3 else b"\xff\xfe") + data
-            continue
-        elif kind == "number":
-            text = data.decode("utf-8", errors="replace")
-            spans = _numbers(text)
-            if spans:
-                i, j = spans[a % len(spans)]
-                data = (text[:i] + b + text[j:]).encode("utf-8")
-            continue
-        elif kind == "blank":
-            lines[a % n] = b""
-        elif kind == "crlf":
-            data = data.replace(b"\n", b"\r\n")
-            continue
-        elif kind == "insert_line":
-            lines.insert(a % (n + 1), b.encode())
-        elif kind == "tilde":
-            lines[a % n] = b"~" + lines[a % n]
-        data = b"\n".join(lines)
-    return data
 
 
 # ---------------------------------------------------------------------------- harness

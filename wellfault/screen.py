@@ -70,7 +70,7 @@ from .column import ReferenceColumn
 from .dip import BedDip
 from .errors import InputError, WellfaultError, WellfaultWarning
 from .faultmap import BRACKET_COLUMNS, FaultFitOptions, FaultMap, fit_faults
-from .io.outputs import output_folder, write_output
+from .io.outputs import output_folder, remove_stale_temporaries, write_output
 from .measure import FaultPlane
 from .neighbours import NeighbourThickness, thickness_samples
 from .precision import DEFAULT_DECIMALS, Decimals, lengths_in_text, round_table
@@ -961,6 +961,7 @@ def _write_tables(result: ScreenResult, folder: Path, fmt: str,
     for name in OUTPUT_FILES:
         df = getattr(result, name)
         path = folder / f"{name}.{fmt}"
+        remove_stale_temporaries(path)  # of a run killed while it wrote the tables
         if fmt == "csv":
             write_table(df, path, decimals=decimals)
         else:

@@ -41,7 +41,7 @@ from typing import BinaryIO, Callable, Union
 
 from ..errors import InputError
 
-__all__ = ["write_output", "output_folder", "STDOUT", "is_stream"]
+__all__ = ["write_output", "output_folder", "remove_stale_temporaries", "STDOUT", "is_stream"]
 
 STDOUT = "-"
 """The name that means standard output wherever wellfault writes a single file."""
@@ -234,3 +234,19 @@ def output_folder(folder: str | os.PathLike, *, what: str = "the output folder")
         raise InputError(f"cannot create {what} {str(path)!r}: {_why(err)}; check "
                          "the path and its permissions") from err
     return path
+
+
+def remove_stale_temporaries(target: str | os.PathLike) -> list[Path]:
+    """Remove the temporary files a killed :func:`write_output` left beside ``target``.
+
+    A process killed outright (``SIGKILL``, power loss) while replacing ``target`` leaves its
+    temporary file, ``.<name>.<random>.tmp``, in the folder; the target itself is whole (old
+    or new). Returns the files removed.
+    """
+    path = Path(target)
+    removed = []
+    for p in path.parent.glob(f".{path.name}.*.tmp"):
+        if p.is_file() and not p.is_symlink():
+            p.unlink(missing_ok=True)
+            removed.append(p)
+    return removed
