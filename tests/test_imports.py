@@ -116,3 +116,20 @@ def test_numba_kernels_load_from_the_on_disk_cache_in_a_new_process():
         runs.append(json.loads(out.stdout.strip().splitlines()[-1]))
     hits, misses = runs[1]
     assert misses == [] and hits > 0
+
+
+def test_the_installed_command_entry_point_runs_and_keeps_exit_codes(tmp_path):
+    """``wellfault.cli.console`` (the ``wellfault`` script): the cut table written, exit 0;
+    bad input exit 2."""
+    out = tmp_path / "cuts.csv"
+    argv = ["detect", str(FIELD / "VR_6H.las"), "--survey", str(FIELD / "VR_6H_survey.csv"),
+            "--dip", "8/070", "--tops", str(FIELD / "tops.csv"), "--column",
+            str(FIELD / "column.csv"), "--out", str(out)]
+    code = "from wellfault.cli import console\nconsole()"
+    done = subprocess.run([sys.executable, "-c", code, *argv], capture_output=True, text=True,
+                          cwd=REPO_ROOT, timeout=300)
+    assert done.returncode == 0 and "qualified geoscientist" in done.stderr
+    assert out.read_text().startswith("well,")
+    bad = subprocess.run([sys.executable, "-c", code, *argv[:2], "--dip", "95/070"],
+                         capture_output=True, text=True, cwd=REPO_ROOT, timeout=300)
+    assert bad.returncode == 2
