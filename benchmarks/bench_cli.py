@@ -61,29 +61,39 @@ MAIN = ("import sys, wellfault.cli as c\n"
 #: kept apart; then the same call again (in-process). Prints one JSON line.
 CHILD = r"""
 import builtins, json, sys, time
-T0 = time.perf_counter()
-acc = {"imports": 0.0}
+
+def now():
+    return time.perf_counter(), time.process_time()
+
+T0 = now()
+acc = {"imports": [0.0, 0.0]}               # [wall, CPU] seconds
 _import, _depth = builtins.__import__, [0]
+
+def add(name, t, i0=None):                   # time since t, less the imports since i0
+    n, a = now(), acc.setdefault(name, [0.0, 0.0])
+    d = [n[k] - t[k] - (acc["imports"][k] - i0[k] if i0 else 0.0) for k in (0, 1)]
+    for k in (0, 1):
+        a[k] += d[k]
 
 def _timed_import(*a, **k):
     if _depth[0]:
         return _import(*a, **k)
-    _depth[0], t = 1, time.perf_counter()
+    _depth[0], t = 1, now()
     try:
         return _import(*a, **k)
     finally:
-        acc["imports"] += time.perf_counter() - t
         _depth[0] = 0
+        add("imports", t)
 
 builtins.__import__ = _timed_import
 
 def phase(name, fn):
     def run(*a, **k):
-        t, i0 = time.perf_counter(), acc["imports"]
+        t, i0 = now(), tuple(acc["imports"])
         try:
             return fn(*a, **k)
         finally:
-            acc[name] = acc.get(name, 0.0) + time.perf_counter() - t - (acc["imports"] - i0)
+            add(name, t, i0)
     return run
 
 import wellfault.cli as cli, wellfault.detect as detect, wellfault.io as io
@@ -93,17 +103,14 @@ detect.find_cuts_from_tops = phase("tops evidence", detect.find_cuts_from_tops)
 detect.find_cuts_from_curves = phase("curve alignment", detect.find_cuts_from_curves)
 cli._write_csv = phase("writing", cli._write_csv)
 argv = json.loads(sys.argv[1])
-t = time.perf_counter()
 assert cli.main(argv) == 0
-acc["main"] = time.perf_counter() - t
-acc["script"] = time.perf_counter() - T0
-first = dict(acc)
-for key in list(acc):
-    acc[key] = 0.0
-t = time.perf_counter()
+add("script", T0)
+first = acc
+acc = {"imports": [0.0, 0.0]}
+t = now()
 assert cli.main(argv) == 0
-again = dict(acc, main=time.perf_counter() - t)
-print(json.dumps({"cold": first, "again": again, "child": time.perf_counter() - T0}))
+add("main", t)
+print(json.dumps({"cold": first, "again": acc, "child": [x - y for x, y in zip(now(), T0)]}))
 import gc
 gc.freeze()                 # as wellfault.cli.console does
 """
@@ -187,13 +194,17 @@ def row(label: str, s: dict, peer: dict | None = None, goal: str = "") -> str:
 
 
 def breakdown(argv: list[str], code: Path) -> dict:
-    """Phases of one cold process running ``argv`` (the CHILD script)."""
+    """Phases of one cold process running ``argv`` (the CHILD script); with the process's
+    wall and user+sys time."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t = time.perf_counter()
     out = subprocess.run([sys.executable, "-c", CHILD, json.dumps(argv)], env=env_for(code),
                          cwd=NEUTRAL, capture_output=True, text=True, check=True)
     wall = time.perf_counter() - t
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
     res = json.loads(out.stdout.strip().splitlines()[-1])
-    res["process"] = wall
+    res["process"] = [wall, (after.ru_utime - before.ru_utime)
+                      + (after.ru_stime - before.ru_stime)]
     return res
 
 
@@ -217,11 +228,15 @@ def install_check(argv: list[str]) -> None:
         env.pop("NUMBA_CACHE_DIR", None)
         print("\ninstalled (pip install --target, not editable), curves, two new processes:")
         for k in range(2):
+            before = resource.getrusage(resource.RUSAGE_CHILDREN)
             t = time.perf_counter()
             out = subprocess.run([sys.executable, "-c", probe, *argv_for(argv, "installed")],
                                  env=env, cwd=tmp, capture_output=True, text=True, check=True)
+            wall = time.perf_counter() - t
+            after = resource.getrusage(resource.RUSAGE_CHILDREN)
+            cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
             hits, misses, where = out.stderr.strip().splitlines()[-1].split(" ", 2)
-            print(f"  run {k + 1}: {time.perf_counter() - t:6.2f} s wall; numba cache hits "
+            print(f"  run {k + 1}: {wall:6.2f} s wall, {cpu:6.2f} s user+sys; numba cache hits "
                   f"{hits}, misses (compiled) {misses}; package {where}")
         caches = sorted(p.name for p in (site / "wellfault" / "align").glob("__pycache__/*.nbi"))
         print(f"  cache beside the installed modules: {len(caches)} kernel index files")
@@ -275,17 +290,21 @@ def main() -> None:
 
     b = breakdown(argv_for(first["curves"], "this"), REPO)
     cold, again = b["cold"], b["again"]
-    print("\none cold process, detect by curves (this code), wall:")
-    print(f"  {'phase':<40} {'cold s':>7} {'in-process s':>13}")
-    start = b["process"] - b["child"]            # interpreter start and exit
-    print(f"  {'interpreter start and exit':<40} {start:7.3f} {'':>13}")
     phases = ("imports", "reading", "tops evidence", "curve alignment", "writing")
-    for key in phases:
-        print(f"  {key:<40} {cold.get(key, 0.0):7.3f} {again.get(key, 0.0):13.3f}")
-    rest = cold["script"] - sum(cold.get(k, 0.0) for k in phases)
-    rest_again = again["main"] - sum(again.get(k, 0.0) for k in phases)
-    print(f"  {'the rest (arguments, type log, measuring)':<40} {rest:7.3f} {rest_again:13.3f}")
-    print(f"  {'total':<40} {start + cold['script']:7.3f} {again['main']:13.3f}")
+    zero = [0.0, 0.0]
+    start = [p - c for p, c in zip(b["process"], b["child"])]     # interpreter start, exit
+    rest = [cold["script"][k] - sum(cold.get(p, zero)[k] for p in phases) for k in (0, 1)]
+    rest_again = [again["main"][k] - sum(again.get(p, zero)[k] for p in phases)
+                  for k in (0, 1)]
+    print("\none cold process, detect by curves (this code): seconds of wall | user+sys")
+    print(f"  {'phase':<42} {'cold':>13}   {'in-process':>13}")
+    lines = [("interpreter start and exit", start, None)]
+    lines += [(p, cold.get(p, zero), again.get(p, zero)) for p in phases]
+    lines += [("the rest (arguments, type log, measuring)", rest, rest_again),
+              ("total", [start[k] + cold["script"][k] for k in (0, 1)], again["main"])]
+    for label, c, a in lines:
+        right = f"{a[0]:6.3f} | {a[1]:5.3f}" if a else ""
+        print(f"  {label:<42} {c[0]:6.3f} | {c[1]:5.3f}   {right}")
 
     if ref:
         print("\ncut tables against the reference code (byte-identical --out CSV):")
