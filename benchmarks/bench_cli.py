@@ -117,7 +117,7 @@ gc.freeze()                 # as wellfault.cli.console does
 
 
 # ----------------------------------------------------------------------------- the test case
-def make_case(seed: int, folder: Path) -> dict[str, list[str]]:
+def make_case(seed: int, folder: Path) -> dict:
     """Write the type well, the well and the column of one seed; the argv of each command."""
     from wellfault.forward import Beds, simulate_well, synthetic_column
     from wellfault.io import write_table
@@ -144,7 +144,7 @@ def make_case(seed: int, folder: Path) -> dict[str, list[str]]:
                           "--out", str(folder / f"{stem}_cuts_{{code}}.csv")],
         "tops": base + ["--tops", str(paths["tops"]), "--column", str(folder / "column.csv"),
                         "--out", str(folder / f"{stem}_tops_cuts_{{code}}.csv")],
-        "samples": [str(len(sc.well.curves))],
+        "samples": len(sc.well.curves),
     }
 
 
@@ -162,15 +162,15 @@ def reference_checkout(ref: str) -> Path:
 
 
 # ----------------------------------------------------------------------------- measuring
-def timed(cmd: list[str], env: dict | None = None) -> tuple[float, float]:
-    """(wall, user+sys CPU) seconds of one new process."""
+def timed(cmd: list[str], env: dict | None = None, cwd=NEUTRAL
+          ) -> tuple[subprocess.CompletedProcess, float, float]:
+    """Run one new process; (its result, wall seconds, user+sys CPU seconds)."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t = time.perf_counter()
-    subprocess.run(cmd, env=env, cwd=NEUTRAL, check=True, stdout=subprocess.DEVNULL,
-                   stderr=subprocess.DEVNULL)
+    done = subprocess.run(cmd, env=env, cwd=cwd, check=True, capture_output=True, text=True)
     wall = time.perf_counter() - t
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
-    return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+    return done, wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
 
 
 def env_for(code: Path) -> dict:
@@ -196,15 +196,9 @@ def row(label: str, s: dict, peer: dict | None = None, goal: str = "") -> str:
 def breakdown(argv: list[str], code: Path) -> dict:
     """Phases of one cold process running ``argv`` (the CHILD script); with the process's
     wall and user+sys time."""
-    before = resource.getrusage(resource.RUSAGE_CHILDREN)
-    t = time.perf_counter()
-    out = subprocess.run([sys.executable, "-c", CHILD, json.dumps(argv)], env=env_for(code),
-                         cwd=NEUTRAL, capture_output=True, text=True, check=True)
-    wall = time.perf_counter() - t
-    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    out, wall, cpu = timed([sys.executable, "-c", CHILD, json.dumps(argv)], env_for(code))
     res = json.loads(out.stdout.strip().splitlines()[-1])
-    res["process"] = [wall, (after.ru_utime - before.ru_utime)
-                      + (after.ru_stime - before.ru_stime)]
+    res["process"] = [wall, cpu]
     return res
 
 
@@ -228,13 +222,8 @@ def install_check(argv: list[str]) -> None:
         env.pop("NUMBA_CACHE_DIR", None)
         print("\ninstalled (pip install --target, not editable), curves, two new processes:")
         for k in range(2):
-            before = resource.getrusage(resource.RUSAGE_CHILDREN)
-            t = time.perf_counter()
-            out = subprocess.run([sys.executable, "-c", probe, *argv_for(argv, "installed")],
-                                 env=env, cwd=tmp, capture_output=True, text=True, check=True)
-            wall = time.perf_counter() - t
-            after = resource.getrusage(resource.RUSAGE_CHILDREN)
-            cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+            out, wall, cpu = timed([sys.executable, "-c", probe, *argv_for(argv, "installed")],
+                                   env, cwd=tmp)
             hits, misses, where = out.stderr.strip().splitlines()[-1].split(" ", 2)
             print(f"  run {k + 1}: {wall:6.2f} s wall, {cpu:6.2f} s user+sys; numba cache hits "
                   f"{hits}, misses (compiled) {misses}; package {where}")
@@ -249,7 +238,8 @@ def main() -> None:
     ap.add_argument("--reference", default="main",
                     help="git revision to compare tables and times with ('' to skip)")
     ap.add_argument("--install-check", action="store_true")
-    ap.add_argument("--folder", type=Path, default=Path(tempfile.gettempdir()) / "wellfault-bench-cli")
+    ap.add_argument("--folder", type=Path, default=Path(NEUTRAL) / "wellfault-bench-cli",
+                    help="where the test wells are written")
     args = ap.parse_args()
 
     sys.path.insert(0, str(REPO))
@@ -258,23 +248,23 @@ def main() -> None:
     codes = {"this": REPO} | ({"ref": ref} if ref else {})
     py = [sys.executable, "-c"]
     first = cases[args.seeds[0]]
-    print(f"wellfault command, cold processes ({platform.processor() or platform.machine()}, "
-          f"{os.cpu_count()} CPUs, load {os.getloadavg()[0]:.2f}; python {platform.python_version()})")
-    print(f"well: {first['samples'][0]} samples (seed {args.seeds[0]}), type log: "
+    print(f"wellfault command, cold processes ({platform.machine()}, {os.cpu_count()} CPUs, "
+          f"load {os.getloadavg()[0]:.2f}; python {platform.python_version()})")
+    print(f"well: {first['samples']} samples (seed {args.seeds[0]}), type log: "
           f"{args.folder / 'type.las'}; reference code: {args.reference or '-'} ({ref})")
     for code, where in codes.items():    # compile/load once so that every timed run is warm
-        subprocess.run(py + [MAIN, *argv_for(first["curves"], code)], env=env_for(where),
-                       cwd=NEUTRAL, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        timed(py + [MAIN, *argv_for(first["curves"], code)], env_for(where))
     runs: dict[str, list] = {}
     for _ in range(args.repeat):      # interleaved, so that load changes hit every command alike
-        runs.setdefault("python -c pass", []).append(timed(py + ["pass"]))
-        runs.setdefault("python -c 'import numpy'", []).append(timed(py + ["import numpy"]))
+        runs.setdefault("python -c pass", []).append(timed(py + ["pass"])[1:])
+        runs.setdefault("python -c 'import numpy'", []).append(
+            timed(py + ["import numpy"])[1:])
         for code, where in codes.items():
             for kind in ("curves", "tops"):
                 runs.setdefault(f"detect by {kind} [{code}]", []).append(
-                    timed(py + [MAIN, *argv_for(first[kind], code)], env_for(where)))
+                    timed(py + [MAIN, *argv_for(first[kind], code)], env_for(where))[1:])
             runs.setdefault(f"--help [{code}]", []).append(
-                timed(py + [MAIN, "--help"], env_for(where)))
+                timed(py + [MAIN, "--help"], env_for(where))[1:])
     s = {k: summary(v) for k, v in runs.items()}
     peer = s["python -c 'import numpy'"]
     print(f"\n  {'command':<34} {'wall s (med, min)':>13}   {'user+sys s':>13}  /numpy")
@@ -313,11 +303,10 @@ def main() -> None:
                 files = []
                 for code, where in codes.items():
                     argv = argv_for(case[kind], code)
-                    subprocess.run(py + [MAIN, *argv], env=env_for(where), cwd=NEUTRAL,
-                                   check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+                    timed(py + [MAIN, *argv], env_for(where))
                     files.append(Path(argv[argv.index("--out") + 1]).read_bytes())
                 n = max(len(files[0].splitlines()) - 1, 0)
-                print(f"  seed {seed} ({case['samples'][0]} samples), {kind}: {n} cut(s), "
+                print(f"  seed {seed} ({case['samples']} samples), {kind}: {n} cut(s), "
                       f"{'identical' if files[0] == files[1] else 'DIFFERENT'}")
     if args.install_check:
         install_check(first["curves"])
