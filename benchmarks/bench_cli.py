@@ -19,7 +19,8 @@ median and the best):
   temporary folder), with the ratios;
 * for one cold process, where the time goes: interpreter start, imports (wherever they
   happen), reading, tops evidence, curve alignment (first call: loading the compiled kernels
-  from the cache), writing, the rest — beside the same call repeated in that process
+  from the cache; of it, the two coarse passes of ``AlignmentEngine.calibrate``), writing, the
+  rest — beside the same call repeated in that process
   (in-process time: imports done, kernels loaded);
 * whether each seed's cut table (``--out`` CSV) is byte-identical to the reference's.
 
@@ -97,11 +98,13 @@ def phase(name, fn):
     return run
 
 import wellfault.cli as cli, wellfault.detect as detect, wellfault.io as io
+import wellfault.align.engine as engine
 for name in ("read_las", "read_tops", "read_survey", "read_column_table", "read_dip_table"):
     setattr(io, name, phase("reading", getattr(io, name)))
 detect.find_cuts_from_tops = phase("tops evidence", detect.find_cuts_from_tops)
 detect.find_cuts_from_curves = phase("curve alignment", detect.find_cuts_from_curves)
 cli._write_csv = phase("writing", cli._write_csv)
+engine.AlignmentEngine.calibrate = phase("calibration", engine.AlignmentEngine.calibrate)
 argv = json.loads(sys.argv[1])
 assert cli.main(argv) == 0
 add("script", T0)
@@ -290,6 +293,8 @@ def main() -> None:
     print(f"  {'phase':<42} {'cold':>13}   {'in-process':>13}")
     lines = [("interpreter start and exit", start, None)]
     lines += [(p, cold.get(p, zero), again.get(p, zero)) for p in phases]
+    lines.insert(5, ("  of which the calibration's coarse passes", cold.get("calibration", zero),
+                     again.get("calibration", zero)))
     lines += [("the rest (arguments, type log, measuring)", rest, rest_again),
               ("total", [start[k] + cold["script"][k] for k in (0, 1)], again["main"])]
     for label, c, a in lines:
