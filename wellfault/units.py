@@ -7,9 +7,11 @@ US survey foot (1200/3937 m) is used only when the caller asks for it (``"usft"`
 from __future__ import annotations
 
 import enum
+from typing import TYPE_CHECKING
 
-import numpy as np
-from numpy.typing import ArrayLike, NDArray
+if TYPE_CHECKING:  # numpy is loaded where lengths are converted, not by `wellfault --help`
+    import numpy as np
+    from numpy.typing import ArrayLike, NDArray
 
 from .errors import UnitError
 
@@ -96,9 +98,13 @@ def parse_depth_unit(text: str | DepthUnit | None, *, source: object = None) -> 
 
 def to_metres(values: ArrayLike, unit: DepthUnit | str) -> NDArray[np.float64]:
     """Convert lengths in ``unit`` to metres."""
+    import numpy as np
+
     return np.asarray(values, dtype=float) * parse_depth_unit(unit).metres
 
 
 def from_metres(values: ArrayLike, unit: DepthUnit | str) -> NDArray[np.float64]:
     """Convert lengths in metres to ``unit``."""
+    import numpy as np
+
     return np.asarray(values, dtype=float) / parse_depth_unit(unit).metres

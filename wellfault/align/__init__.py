@@ -11,43 +11,41 @@ predicted strat increment of every well sample):
 * :func:`dtw_baseline`, :func:`dtw_subsequence`, :func:`dtw_cuts` — plain monotone DTW, the
   accuracy baseline (both ends anchored, or open-ended with cuts read from its path).
 * :func:`lag_changepoints` — cheap screen: change points of the windowed cross-correlation lag.
+
+Each name is imported from its module when first used (DEVELOPERS.md, "Imports"): the engine
+never loads the lag screen's change-point library (ruptures, scipy.stats) or the DTW baseline.
 """
 
-from .dtw import DTWCut, dtw_baseline, dtw_cuts, dtw_subsequence
-from .engine import (
-    CONFIDENCE_COEF,
-    Alignment,
-    AlignmentEngine,
-    Jump,
-    StreamingAligner,
-    running_standardise,
-    stretch_moves,
-)
-from .lagcp import LagCut, LagTrack, lag_changepoints
-from .misfit import MISFITS, misfit_matrix, robust_location_scale, standardise
-from .resample import StratRows, resample_strat
-from .stream import TailAlignment
+from __future__ import annotations
 
-__all__ = [
-    "AlignmentEngine",
-    "StreamingAligner",
-    "TailAlignment",
-    "Alignment",
-    "Jump",
-    "stretch_moves",
-    "standardise",
-    "robust_location_scale",
-    "misfit_matrix",
-    "MISFITS",
-    "resample_strat",
-    "StratRows",
-    "dtw_baseline",
-    "dtw_subsequence",
-    "dtw_cuts",
-    "DTWCut",
-    "running_standardise",
-    "CONFIDENCE_COEF",
-    "lag_changepoints",
-    "LagTrack",
-    "LagCut",
-]
+from typing import TYPE_CHECKING
+
+from .._lazy import lazy_exports
+
+if TYPE_CHECKING:  # what the lazy names below are, for type checkers (tests keep them equal)
+    from .dtw import DTWCut, dtw_baseline, dtw_cuts, dtw_subsequence
+    from .engine import (
+        CONFIDENCE_COEF,
+        Alignment,
+        AlignmentEngine,
+        Jump,
+        StreamingAligner,
+        running_standardise,
+        stretch_moves,
+    )
+    from .lagcp import LagCut, LagTrack, lag_changepoints
+    from .misfit import MISFITS, misfit_matrix, robust_location_scale, standardise
+    from .resample import StratRows, resample_strat
+    from .stream import TailAlignment
+
+__getattr__, __dir__, _LAZY = lazy_exports(__name__, globals(), {
+    ".engine": ("AlignmentEngine", "StreamingAligner", "Alignment", "Jump", "stretch_moves",
+                "running_standardise", "CONFIDENCE_COEF"),
+    ".stream": ("TailAlignment",),
+    ".misfit": ("standardise", "robust_location_scale", "misfit_matrix", "MISFITS"),
+    ".resample": ("resample_strat", "StratRows"),
+    ".dtw": ("dtw_baseline", "dtw_subsequence", "dtw_cuts", "DTWCut"),
+    ".lagcp": ("lag_changepoints", "LagTrack", "LagCut"),
+})
+
+__all__ = list(_LAZY)
