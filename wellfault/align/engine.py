@@ -153,13 +153,20 @@ from .misfit import check_misfit, reference_bounds, robust_location_scale
 from .stream import StreamingAligner, _as_curves
 
 __all__ = ["AlignmentEngine", "StreamingAligner", "Alignment", "Jump", "stretch_moves",
-           "running_standardise", "CONFIDENCE_COEF"]
+           "running_standardise", "CONFIDENCE_COEF", "PRIOR_EXCESS", "ANCHOR_COST_JUMPS"]
 
 #: Coefficients of the calibrated cut confidence (module docstring, "Cut evidence"): the
 #: logistic model P(real) = 1 / (1 + exp(-b . [1, ln(1 + margin), correlation, ln(run)])),
 #: fitted by benchmarks/calibrate_confidence.py (default arguments) on 380 forward-modelled
 #: wells (seeds 10000+, type logs on a 0.1524 m grid): 481 cuts, 318 real.
 CONFIDENCE_COEF: tuple[float, float, float, float] = (-15.75, -0.1323, 14.59, 1.094)
+
+#: Default slope of the jump-size prior: a jump twice the plausible size costs
+#: ``1 + PRIOR_EXCESS`` plain jumps (module docstring, "Jump-size prior").
+PRIOR_EXCESS = 4.0
+#: Default cost of a row outside its anchor's band, in plain jumps (module docstring,
+#: "Anchors").
+ANCHOR_COST_JUMPS = 1.5
 
 
 def stretch_moves(stretch: float) -> tuple[int, int]:
@@ -289,6 +296,13 @@ class AlignmentEngine:
         docstring); None = the uncalibrated form with ``confidence_scale``,
         ``confidence_offset`` (margin shift) and the correlation ramp.
     confidence_offset : float — margin shift of the uncalibrated form.
+    jump_free : int or None — plausible jump size [reference samples]: a larger jump costs
+        ``jump_slope`` per sample beyond it on top of ``jump_penalty`` (module docstring,
+        "Jump-size prior"); None = every jump costs the same (no prior).
+    jump_slope : float or None — cost per reference sample beyond ``jump_free`` (inf forbids
+        larger jumps); None = ``PRIOR_EXCESS·jump_penalty/jump_free``.
+    anchor_cost : float or None — cost of a row outside its anchor's band (module docstring,
+        "Anchors"); None = ``ANCHOR_COST_JUMPS·jump_penalty``.
     """
 
     def __init__(
@@ -318,6 +332,9 @@ class AlignmentEngine:
         calibrate_window: int = 60,
         confidence_offset: float = 0.0,
         confidence_coef: tuple[float, float, float, float] | None = CONFIDENCE_COEF,
+        jump_free: int | None = None,
+        jump_slope: float | None = None,
+        anchor_cost: float | None = None,
     ) -> None:
         self.ref = ref
         self.weights = weights
@@ -343,6 +360,9 @@ class AlignmentEngine:
         self.calibrate_window = calibrate_window
         self.confidence_offset = confidence_offset
         self.confidence_coef = confidence_coef
+        self.jump_free = jump_free
+        self.jump_slope = jump_slope
+        self.anchor_cost = anchor_cost
         self._check()
 
     # -- set-up -------------------------------------------------------------------------------
@@ -387,7 +407,40 @@ class AlignmentEngine:
                 raise input_error("confidence_coef must be 4 finite numbers",
                                   value=self.confidence_coef,
                                   fix="pass None, or CONFIDENCE_COEF (wellfault.align)")
+        if self.jump_free is not None and not (int(self.jump_free) == self.jump_free
+                                               and int(self.jump_free) >= 0):
+            raise input_error("jump_free must be a whole number of reference samples >= 0",
+                              value=self.jump_free,
+                              fix="use None (no jump-size prior) or e.g. 1300 (200 m at 0.15 m)")
+        for name in ("jump_slope", "anchor_cost"):
+            v = getattr(self, name)
+            if v is not None and not float(v) >= 0:
+                raise input_error(f"{name} must be >= 0 (or None for the default)", value=v)
         check_misfit(self.misfit)
+
+    # -- jump-size prior and anchors -----------------------------------------------------------
+    def prior_slope(self) -> float:
+        """Cost per reference sample of a jump's size beyond ``jump_free`` (module docstring,
+        "Jump-size prior"): ``jump_slope``, by default ``PRIOR_EXCESS·jump_penalty/jump_free``."""
+        if self.jump_slope is not None:
+            return float(self.jump_slope)
+        return PRIOR_EXCESS * float(self.jump_penalty) / max(int(self.jump_free or 0), 1)
+
+    def jump_cost(self, size: float) -> float:
+        """Cost of a jump of ``size`` reference samples (``jump_penalty`` plus the prior's
+        excess; the size is the reference displacement between consecutive rows)."""
+        pen = float(self.jump_penalty)
+        if self.jump_free is None:
+            return pen
+        excess = max(abs(float(size)) - int(self.jump_free), 0.0)
+        return pen + self.prior_slope() * excess if excess > 0 else pen
+
+    def anchor_penalty(self) -> float:
+        """Cost of a row placed outside its anchor's band: ``anchor_cost``, by default
+        ``ANCHOR_COST_JUMPS·jump_penalty`` (module docstring, "Anchors")."""
+        if self.anchor_cost is not None:
+            return float(self.anchor_cost)
+        return ANCHOR_COST_JUMPS * float(self.jump_penalty)
 
     def _prepared(self) -> dict:
         if getattr(self, "prep_", None) is None:
@@ -419,27 +472,31 @@ class AlignmentEngine:
                 w=np.ascontiguousarray(w),
                 kind=check_misfit(self.misfit), bf=bf, bs=bs, pad=bs + 2, nb=bs + 1,
                 ref_center=c, ref_scale=s, n_curves=r.shape[1],
+                jump_free=-1 if self.jump_free is None else int(self.jump_free),
+                jump_slope=self.prior_slope() if self.jump_free is not None else 0.0,
+                anchor_cost=self.anchor_penalty(),
             )
         return self.prep_
 
     # -- public -------------------------------------------------------------------------------
-    def stream(self, *, center: np.ndarray | None = None,
-               scale: np.ndarray | None = None) -> StreamingAligner:
+    def stream(self, *, center: np.ndarray | None = None, scale: np.ndarray | None = None,
+               anchors=None) -> StreamingAligner:
         """A streaming aligner for a well being drilled (``push`` samples, read ``current``).
 
         ``center``/``scale`` (C,) standardise the well's curves; while drilling the well's own
         statistics are unknown, so by default the type log's raw median and spread are used
         (tools assumed calibrated alike) — pass values from an offset well or from the first
-        part of the hole when that does not hold.
+        part of the hole when that does not hold. ``anchors`` as for :meth:`align` (sample
+        numbers count from the first sample pushed).
         """
         p = self._prepared()
         if center is None or scale is None:
             center = p["ref_center"] if center is None else center
             scale = p["ref_scale"] if scale is None else scale
-        return StreamingAligner(self, center, scale)
+        return StreamingAligner(self, center, scale, anchors)
 
     def align(self, well: np.ndarray, step: np.ndarray, *, center: np.ndarray | None = None,
-              scale: np.ndarray | None = None) -> Alignment:
+              scale: np.ndarray | None = None, anchors=None) -> Alignment:
         """Align a whole well: the optimal path, its jumps and their evidence.
 
         Parameters
@@ -450,6 +507,10 @@ class AlignmentEngine:
         center, scale : (C,) optional — well standardisation; by default from
             :meth:`calibrate` (the well's quantiles matched to those of the type-log samples it
             covers), or the well's own median and spread when ``calibrate_passes == 0``.
+        anchors : (K, 3) array_like, optional — picked surfaces as constraints (module
+            docstring, "Anchors"): per row ``(sample, position, tolerance)``, the well sample
+            at the surface, the surface's reference position and the tolerance [reference
+            samples].
         """
         p = self._prepared()
         x = _as_curves(well, p["n_curves"], "well")
@@ -463,10 +524,10 @@ class AlignmentEngine:
                 robust_location_scale(x)
             center = c0 if center is None else center
             scale = s0 if scale is None else scale
-        return self._align(x, s, center, scale, evidence=True)
+        return self._align(x, s, center, scale, evidence=True, anchors=anchors)
 
-    def _align(self, x, s, center, scale, evidence: bool) -> Alignment:
-        aligner = StreamingAligner(self, center, scale)
+    def _align(self, x, s, center, scale, evidence: bool, anchors=None) -> Alignment:
+        aligner = StreamingAligner(self, center, scale, anchors)
         aligner.push(x, s)
         return aligner._result(evidence)
 
@@ -515,6 +576,8 @@ class AlignmentEngine:
                 standardise=False, subsample=self.subsample, calibrate_passes=0,
                 off_log=int(math.ceil(int(self.off_log) / f)),
                 off_log_misfit=self.off_log_misfit,
+                jump_free=None if self.jump_free is None else int(math.ceil(self.jump_free / f)),
+                jump_slope=None if self.jump_free is None else self.prior_slope(),
             )
 
         half = 0.5 * min(float(self.calibrate_window), m / 8.0)
