@@ -52,11 +52,14 @@ def _oracle_best(rows, ref, *, w, stretch, jump, strain, kind, delta, null_misfi
     return _oracle_over_costs(rows, e, stretch=stretch, jump=jump, strain=strain)
 
 
-def _oracle_over_costs(rows, e, *, stretch, jump, strain, jump_free=None, jump_slope=0.0):
+def _oracle_over_costs(rows, e, *, stretch, jump, strain, jump_free=None, jump_slope=0.0,
+                       jump_bins=8):
     """Exhaustive minimum over every path through the cost table ``e[row][column]``.
 
-    A jump from column j to jn costs ``jump``, plus ``jump_slope`` per column of ``|jn − j|``
-    beyond ``jump_free`` when that is given (engine.py, "Jump-size prior")."""
+    A jump from column j to jn costs ``jump``, plus, when ``jump_free`` is given, ``jump_slope``
+    per column of bin distance beyond the free bins: columns in bins of
+    ``B = max(1, ceil(jump_free / jump_bins))``, ``w = ceil(jump_free / B)`` bins free
+    (engine.py, "Jump-size prior")."""
     R, M = rows.n_rows, len(e[0])
     Rr = [math.floor(c + 0.5) for c in rows.centre]
     sig = list(rows.direction)
@@ -82,8 +85,10 @@ def _oracle_over_costs(rows, e, *, stretch, jump, strain, jump_free=None, jump_s
                 rec(rl, jl, cost + strain + sum(e[t][c] for t, c in cells))
         for jn in range(M):                                          # JUMP (anywhere)
             extra = 0.0
-            if jump_free is not None and abs(jn - j) > jump_free:
-                extra = jump_slope * (abs(jn - j) - jump_free)
+            if jump_free is not None:
+                b = max(1, math.ceil(jump_free / jump_bins))
+                over = abs(jn // b - j // b) - math.ceil(jump_free / b)
+                extra = jump_slope * b * over if over > 0 else 0.0
             rec(r + 1, jn, cost + jump + extra + e[r + 1][jn])
 
     for j in range(M):
@@ -166,7 +171,7 @@ def _prior_anchor_case(seed):
     rng = np.random.default_rng(seed + 1000)
     m = ref.shape[0]
     prm.update(jump_penalty=float(rng.uniform(0.02, 0.5)),   # cheap jumps: many to price
-               jump_free=int(rng.integers(0, 3)),
+               jump_free=int(rng.integers(0, 3)), jump_bins=int(rng.choice([1, 2, 8])),
                jump_slope=float(rng.choice([0.5, 2.0, math.inf])),
                anchor_cost=float(rng.choice([0.5, 2.0])))
     anchors = [(int(rng.integers(well.shape[0])), float(rng.uniform(-0.5, m - 0.5)),
@@ -188,7 +193,7 @@ def test_engine_with_prior_and_anchors_equals_exhaustive_search(seed):
     want = _oracle_over_costs(rows, _with_anchors(e, rows, anchors, prm["anchor_cost"]),
                               stretch=prm["stretch"], jump=prm["jump_penalty"],
                               strain=prm["strain_penalty"], jump_free=prm["jump_free"],
-                              jump_slope=prm["jump_slope"])
+                              jump_slope=prm["jump_slope"], jump_bins=prm["jump_bins"])
     assert al.score == pytest.approx(want, rel=1e-9, abs=1e-9)
 
 
@@ -199,7 +204,7 @@ def test_prior_and_anchor_cases_are_not_vacuous():
     for seed in range(80):
         well, ref, step, prm, anchors = _prior_anchor_case(seed)
         plain = {k: v for k, v in prm.items() if k not in ("jump_free", "jump_slope",
-                                                             "anchor_cost")}
+                                                             "jump_bins", "anchor_cost")}
         s0 = AlignmentEngine(ref, standardise=False, **plain).align(well, step).score
         s1 = AlignmentEngine(ref, standardise=False, **prm).align(well, step).score
         s2 = AlignmentEngine(ref, standardise=False, **prm).align(
@@ -216,7 +221,7 @@ def test_path_with_prior_costs_the_reported_score():
     ref = rng.normal(size=(400, 2))
     well = np.vstack([ref[5:65], ref[300:360], ref[150:210]]) + 0.05 * rng.normal(size=(180, 2))
     eng = AlignmentEngine(ref, standardise=False, jump_penalty=1.0, jump_free=20,
-                          jump_slope=0.01)
+                          jump_slope=0.01, jump_bins=20)
     al = eng.align(well, np.ones(180))
     e = np.abs(well - ref[al.row_path])
     mis = np.where(e <= 1.0, 0.5 * e**2, e - 0.5).mean(axis=1)

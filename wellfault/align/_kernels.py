@@ -10,14 +10,12 @@ Moves landing at (r, j) (codes stored one byte per cell):
 * FOLLOW from (r-1, j - (Rr[r]-Rr[r-1]))
 * FAST   from (r-bf, j - (Rr[r]-Rr[r-bf]) - sig) through rows r-bf+1..r-1 at the new lag
 * SLOW   from (r-bs, j - (Rr[r]-Rr[r-bs]) + sig) likewise
-* JUMP   from any cell i of row r-1 at cost ``jump_pen + jump_slope·max(0, |j − i| − jump_free)``
-  (engine.py, "Jump-size prior"); without the prior (``jump_free < 0``) from the best cell of
-  row r-1 (its column is kept per row in ``rowarg``)
+* JUMP   from any cell i of row r-1; without the prior (``jump_bin <= 0``) at cost
+  ``jump_pen`` from the best cell of row r-1 (its column is kept per row in ``rowarg``); with
+  it at cost ``jump_pen + slope_bin·max(0, |i // B − j // B| − w)`` (``B = jump_bin``, ``w =
+  jump_wbins``; engine.py, "Jump-size prior"), its source column kept per row and landing bin
+  in ``jsrc[r]``
 * START  (row 0 only)
-
-A code byte holds the move in its low 3 bits (``code & MOVE``). With the prior its high 5 bits
-record, per column x, the choices of the row's jump-cost transform (:func:`_jump_costs`), from
-which :func:`_jump_source` recovers a jump's source cell at traceback: no source is stored.
 
 Anchors (engine.py, "Anchors"): ``anc_row`` (sorted), ``anc_lo``, ``anc_hi`` list column bands;
 on row ``anc_row[k]`` every column outside ``[anc_lo[k], anc_hi[k]]`` costs ``anc_cost`` more.
@@ -31,9 +29,6 @@ from numba import njit
 from .misfit import _row_sum, misfit_cols
 
 FOLLOW, FAST, SLOW, JUMP, START = 0, 1, 2, 3, 4
-MOVE = 7                       # low bits of a code byte: the move
-# jump-cost transform bits (per column x of the landing row)
-PB, SB, WB, DF, DB = 8, 16, 32, 64, 128
 INF = np.inf
 
 
@@ -77,86 +72,54 @@ def _first_index(a, off, m, value):
 
 
 @njit(cache=True)
-def _jump_costs(g, D, beta, out, P, bits):
-    """``out[j] = min_i g[i] + beta·max(0, |j − i| − D)`` over the m columns of ``g``, exact.
+def _jump_costs(F, pad, m, B, w, slope_bin, bmin, barg, out, src):
+    """Jump cost and source per column of the landing row under the binned size prior.
 
-    The kernel is the infimal convolution of a flat window of half-width ``D`` with
-    ``beta·|d|``, so the transform is a windowed minimum (van Herk 1992 / Gil and Werman 1993:
-    prefix and suffix minima in blocks of ``2D + 1``) followed by a two-pass linear distance
-    transform (Felzenszwalb and Huttenlocher 2012, the L1 case). Each pass records its choice
-    per column in ``bits`` (PB, SB, WB, DF, DB), read back by :func:`_jump_source`. O(m);
-    ``P`` is scratch of m floats; ``beta`` may be inf (no jump beyond ``D``).
+    Columns are binned ``B`` at a time; a jump from bin q to bin q' costs
+    ``slope_bin·max(0, |q − q'| − w)`` on top of the penalty. Per source bin its best cell
+    (vectorised minimum), then the best source bin of each landing bin: a minimum over the
+    ``2w + 1`` bins around it, then a two-pass linear distance transform over the bins
+    (Felzenszwalb and Huttenlocher 2012, the L1 case). ``out[j]`` gets the cheapest source cost
+    of column j's bin, ``src[q]`` that source's column. O(m + nbins·w).
     """
-    m = g.shape[0]
-    K = 2 * D + 1
-    k = 0
-    for x in range(m):                          # prefix minima within blocks
-        if k > 0 and P[x - 1] <= g[x]:
-            P[x] = P[x - 1]
-            bits[x] = PB
-        else:
-            P[x] = g[x]
-            bits[x] = 0
-        k = 0 if k == K - 1 else k + 1
-    k = (m - 1) % K
-    for x in range(m - 1, -1, -1):              # suffix minima within blocks, into out
-        if k < K - 1 and x < m - 1 and out[x + 1] <= g[x]:
-            out[x] = out[x + 1]
-            bits[x] |= SB
-        else:
-            out[x] = g[x]
-        k = K - 1 if k == 0 else k - 1
-    ka = (m - 1 - D) % K if m - 1 >= D else 0
-    for x in range(m - 1, -1, -1):              # window [x-D, x+D]: S[a] and/or P[z]
-        a = x - D if x >= D else 0
-        z = x + D if x + D < m else m - 1
-        sa = out[a]
-        pz = P[z]
-        usep = ka == 0 if ka + (z - a) < K else pz < sa
-        if usep:
-            out[x] = pz
-            bits[x] |= WB
-        else:
-            out[x] = sa
-        if x > D:
-            ka = K - 1 if ka == 0 else ka - 1
-    for x in range(1, m):                       # distance transform, left to right
-        v = out[x - 1] + beta
-        if v < out[x]:
-            out[x] = v
-            bits[x] |= DF
-    for x in range(m - 2, -1, -1):              # and right to left
-        v = out[x + 1] + beta
-        if v < out[x]:
-            out[x] = v
-            bits[x] |= DB
-
-
-@njit(cache=True)
-def _jump_source(row, j, D):
-    """Source column of the jump landing at column ``j`` of a code row (see _jump_costs)."""
-    m = row.shape[0]
-    x = j
-    while row[x] & DB:
-        x += 1
-    while row[x] & DF:
-        x -= 1
-    if row[x] & WB:
-        u = min(x + D, m - 1)
-        while row[u] & PB:
-            u -= 1
-    else:
-        u = max(x - D, 0)
-        while row[u] & SB:
-            u += 1
-    return u
+    nb = (m + B - 1) // B
+    for q in range(nb):
+        s0 = q * B
+        L = min(B, m - s0)
+        v = _row_min(F, pad + s0, L)
+        bmin[q] = v
+        barg[q] = s0 + _first_index(F, pad + s0, L, v)
+    hb = bmin[nb:2 * nb]
+    for q in range(nb):
+        best = INF
+        arg = barg[q]
+        for q2 in range(max(0, q - w), min(nb, q + w + 1)):
+            if bmin[q2] < best:
+                best = bmin[q2]
+                arg = barg[q2]
+        hb[q] = best
+        src[q] = arg
+    for q in range(1, nb):
+        v = hb[q - 1] + slope_bin
+        if v < hb[q]:
+            hb[q] = v
+            src[q] = src[q - 1]
+    for q in range(nb - 2, -1, -1):
+        v = hb[q + 1] + slope_bin
+        if v < hb[q]:
+            hb[q] = v
+            src[q] = src[q + 1]
+    for q in range(nb):
+        s0 = q * B
+        o = out[s0:min(s0 + B, m)]
+        o[:] = hb[q]
 
 
 @njit(cache=True)
 def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w, kind, delta,
                  null_misfit, Rr, sig, run, bf, bs, jump_pen, strain_pen, Fring, Ering, rowmin,
-                 rowarg, rowmean, codes, code_row0, off_lo, off_hi, off_cost, jump_free,
-                 jump_slope, anc_row, anc_lo, anc_hi, anc_cost):
+                 rowarg, rowmean, codes, code_row0, off_lo, off_hi, off_cost, jump_bin,
+                 jump_wbins, slope_bin, jsrc, anc_row, anc_lo, anc_hi, anc_cost):
     """Run the DP over rows r0..r1-1, writing codes into ``codes[r - code_row0]``.
 
     Row ``r_first`` starts the paths: at every column (``start_col < 0``) or at ``start_col``
@@ -170,9 +133,9 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
     Per row: the misfit pass, one pass per intermediate row of the FAST/SLOW moves, then one
     fused branch-free pass over the candidates (a disabled move reads an all-inf row), so the
     compiler can vectorise; the jump source (best cell of the row) is kept per row. With the
-    jump-size prior (``jump_free >= 0``) the jump cost of every column comes from
-    :func:`_jump_costs` on the previous row, its bits or-ed into the codes. Anchor bands
-    (module docstring) are added to the misfit row after its mean is taken.
+    jump-size prior (``jump_bin > 0``) the jump cost of every column and the source of every
+    landing bin come from :func:`_jump_costs` on the previous row (sources into ``jsrc[r]``).
+    Anchor bands (module docstring) are added to the misfit row after its mean is taken.
     """
     nb = Fring.shape[0]
     m = lo_t.shape[1]
@@ -181,10 +144,11 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
     Xf = np.empty(n)
     Xs = np.empty(n)
     none = np.full(m + 2 * pad, INF)
-    prior = jump_free >= 0 and jump_pen < INF
+    prior = jump_bin > 0 and jump_pen < INF
     jv = np.empty(m)
-    jscratch = np.empty(m)
-    jb = np.zeros(m, np.uint8)
+    nbin = (m + jump_bin - 1) // jump_bin if prior else 1
+    bmin = np.empty(2 * nbin)
+    barg = np.empty(nbin, np.int64)
     ka = np.searchsorted(anc_row, r0)
     for r in range(r0, r1):
         slot = r % nb
@@ -239,11 +203,11 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
                 for t in range(r - bs + 1, r):
                     _add_shifted(Xs, Ering[t % nb], pad + c0 - (Rr[r] - Rr[t]), n)
             if prior:
-                _jump_costs(Fp[pad:pad + m], jump_free, jump_slope, jv, jscratch, jb)
+                _jump_costs(Fp, pad, m, jump_bin, jump_wbins, slope_bin, bmin, barg, jv,
+                            jsrc[r])
             else:
                 jv[:] = rowmin[r - 1]
             jc = jv[c0:c1]
-            jbits = jb[c0:c1]
             fp = Fp[op:op + n]
             ff = Ff[of:of + n]
             fs = Fs[os_:os_ + n]
@@ -264,7 +228,7 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
                 c = v if lt else c
                 code = np.uint8(JUMP) if lt else code
                 fr[j] = c + er[j]
-                cr[j] = code | jbits[j]
+                cr[j] = code
         best = _row_min(Fr, pad + c0, n)
         rowmin[r] = best
         rowarg[r] = c0 + _first_index(Fr, pad + c0, n, best)
@@ -281,7 +245,7 @@ def row_geometry(meta, r0, r1, Rr, sig, run):
 
 @njit(cache=True)
 def traceback_block(codes, code_row0, r, j, Rr, sig, bf, bs, rowarg, path, landing, jumped,
-                    jump_free):
+                    jump_bin, jsrc):
     """Follow moves back from landing cell (r, j) while r lies in this block of codes.
 
     Fills ``path`` (column per row), ``landing`` (1 where a move lands) and ``jumped`` (1 where
@@ -290,7 +254,7 @@ def traceback_block(codes, code_row0, r, j, Rr, sig, bf, bs, rowarg, path, landi
     while r >= code_row0:
         path[r] = j
         landing[r] = 1
-        code = codes[r - code_row0, j] & MOVE
+        code = codes[r - code_row0, j]
         if code == START:
             return -1, j
         if code == FOLLOW:
@@ -298,8 +262,7 @@ def traceback_block(codes, code_row0, r, j, Rr, sig, bf, bs, rowarg, path, landi
             r = r - 1
         elif code == JUMP:
             jumped[r] = 1
-            j = _jump_source(codes[r - code_row0], j, jump_free) if jump_free >= 0 \
-                else rowarg[r - 1]
+            j = jsrc[r, j // jump_bin] if jump_bin > 0 else rowarg[r - 1]
             r = r - 1
         else:
             b = bf if code == FAST else bs

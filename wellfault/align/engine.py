@@ -301,6 +301,8 @@ class AlignmentEngine:
         "Jump-size prior"); None = every jump costs the same (no prior).
     jump_slope : float or None — cost per reference sample beyond ``jump_free`` (inf forbids
         larger jumps); None = ``PRIOR_EXCESS·jump_penalty/jump_free``.
+    jump_bins : int — the prior measures sizes in bins of ``ceil(jump_free/jump_bins)``
+        reference samples (module docstring, "Jump-size prior").
     anchor_cost : float or None — cost of a row outside its anchor's band (module docstring,
         "Anchors"); None = ``ANCHOR_COST_JUMPS·jump_penalty``.
     """
@@ -334,6 +336,7 @@ class AlignmentEngine:
         confidence_coef: tuple[float, float, float, float] | None = CONFIDENCE_COEF,
         jump_free: int | None = None,
         jump_slope: float | None = None,
+        jump_bins: int = 8,
         anchor_cost: float | None = None,
     ) -> None:
         self.ref = ref
@@ -362,6 +365,7 @@ class AlignmentEngine:
         self.confidence_coef = confidence_coef
         self.jump_free = jump_free
         self.jump_slope = jump_slope
+        self.jump_bins = jump_bins
         self.anchor_cost = anchor_cost
         self._check()
 
@@ -412,6 +416,9 @@ class AlignmentEngine:
             raise input_error("jump_free must be a whole number of reference samples >= 0",
                               value=self.jump_free,
                               fix="use None (no jump-size prior) or e.g. 1300 (200 m at 0.15 m)")
+        if not (int(self.jump_bins) == self.jump_bins and int(self.jump_bins) >= 1):
+            raise input_error("jump_bins must be a whole number >= 1", value=self.jump_bins,
+                              fix="use e.g. 8")
         for name in ("jump_slope", "anchor_cost"):
             v = getattr(self, name)
             if v is not None and not float(v) >= 0:
@@ -426,14 +433,24 @@ class AlignmentEngine:
             return float(self.jump_slope)
         return PRIOR_EXCESS * float(self.jump_penalty) / max(int(self.jump_free or 0), 1)
 
-    def jump_cost(self, size: float) -> float:
-        """Cost of a jump of ``size`` reference samples (``jump_penalty`` plus the prior's
-        excess; the size is the reference displacement between consecutive rows)."""
-        pen = float(self.jump_penalty)
+    def prior_bins(self) -> tuple[int, int]:
+        """(B, w): the prior's bin width [reference samples] and free bins (module docstring,
+        "Jump-size prior"); (0, 0) without the prior."""
         if self.jump_free is None:
+            return 0, 0
+        d = int(self.jump_free)
+        b = max(1, math.ceil(d / int(self.jump_bins)))
+        return b, math.ceil(d / b)
+
+    def jump_cost(self, i: int, j: int) -> float:
+        """Cost of a jump from DP column ``i`` of a row to column ``j`` of the next one
+        (``jump_penalty`` plus the prior's excess)."""
+        pen = float(self.jump_penalty)
+        b, w = self.prior_bins()
+        if b == 0:
             return pen
-        excess = max(abs(float(size)) - int(self.jump_free), 0.0)
-        return pen + self.prior_slope() * excess if excess > 0 else pen
+        excess = max(abs(int(j) // b - int(i) // b) - w, 0)
+        return pen + self.prior_slope() * b * excess if excess > 0 else pen
 
     def anchor_penalty(self) -> float:
         """Cost of a row placed outside its anchor's band: ``anchor_cost``, by default
@@ -472,8 +489,9 @@ class AlignmentEngine:
                 w=np.ascontiguousarray(w),
                 kind=check_misfit(self.misfit), bf=bf, bs=bs, pad=bs + 2, nb=bs + 1,
                 ref_center=c, ref_scale=s, n_curves=r.shape[1],
-                jump_free=-1 if self.jump_free is None else int(self.jump_free),
-                jump_slope=self.prior_slope() if self.jump_free is not None else 0.0,
+                jump_bin=self.prior_bins()[0], jump_wbins=self.prior_bins()[1],
+                slope_bin=self.prior_slope() * self.prior_bins()[0]
+                if self.jump_free is not None else 0.0,
                 anchor_cost=self.anchor_penalty(),
             )
         return self.prep_
@@ -578,6 +596,7 @@ class AlignmentEngine:
                 off_log_misfit=self.off_log_misfit,
                 jump_free=None if self.jump_free is None else int(math.ceil(self.jump_free / f)),
                 jump_slope=None if self.jump_free is None else self.prior_slope(),
+                jump_bins=self.jump_bins,
             )
 
         half = 0.5 * min(float(self.calibrate_window), m / 8.0)

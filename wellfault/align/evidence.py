@@ -28,7 +28,8 @@ def _traceback(al, nrows: int, blocks: list) -> tuple[np.ndarray, np.ndarray, np
             break
         if row0 <= r < row0 + blk.shape[0]:
             r, j = K.traceback_block(blk, row0, r, j, al._Rr.a, al._sig.a, p["bf"], p["bs"],
-                                     al._rowarg.a, path, landing, jumped, p["jump_free"])
+                                     al._rowarg.a, path, landing, jumped, p["jump_bin"],
+                                     al._jsrc.a)
     return path, landing, jumped
 
 
@@ -135,6 +136,9 @@ def _landing_at_or_before(landing: np.ndarray, hi: int, lo: int) -> int:
     return lo
 
 
+_NO_SOURCES = np.zeros((1, 1), np.int64)
+
+
 def _window_dp(al, rows: np.ndarray, Rr: np.ndarray, sig: np.ndarray, start_col: int,
                centre: int, free: bool, anchors) -> np.ndarray:
     """Row minima of the jump-free DP over the given window rows (engine kernel, no jumps).
@@ -161,7 +165,7 @@ def _window_dp(al, rows: np.ndarray, Rr: np.ndarray, sig: np.ndarray, start_col:
                    p["ref_nan"], p["w"], p["kind"], float(e.huber_delta), float(e.null_misfit),
                    Rr, sig, run, p["bf"], p["bs"], math.inf, float(e.strain_penalty), F, E,
                    rowmin, rowarg, rowmean, codes, 0, p["off"], p["off"] + p["m_ref"],
-                   p["off_cost"], -1, 0.0, *anchors, p["anchor_cost"])
+                   p["off_cost"], 0, 0, 0.0, _NO_SOURCES, *anchors, p["anchor_cost"])
     return rowmin
 
 
@@ -189,7 +193,7 @@ def _jump_evidence(al, r: int, a: int, z: int, path: np.ndarray,
                       np.ascontiguousarray(-sig[::-1]), int(path[z]), int(path[z]), True,
                       ((z - arow)[::-1].copy(), alo[::-1].copy(), ahi[::-1].copy()))[::-1]
     cost = np.full(z - a + 1, np.inf)
-    cost[1:] = fmin[:-1] + e.jump_cost(path[r] - path[r - 1]) + bmin[1:]
+    cost[1:] = fmin[:-1] + e.jump_cost(path[r - 1], path[r]) + bmin[1:]
     best = float(cost.min())
     alt = float(fmin[-1])
     margin = alt - best if np.isfinite(alt) else math.inf

@@ -84,7 +84,7 @@ class _TailView:
         self.engine, self._p, self.center, self.scale = al.engine, al._p, al.center, al.scale
         self.n_samples = i_hi - i_lo
         for name in ("_meta", "_rows", "_Rr", "_sig", "_run", "_rowmin", "_rowarg",
-                     "_rowmean"):
+                     "_rowmean", "_jsrc"):
             setattr(self, name, _Arr(getattr(al, name).a[lo:n]))
         self._srow = _Arr(al._srow.a[i_lo:i_hi] - lo)
         self._spos = _Arr(al._spos.a[i_lo:i_hi])
@@ -133,6 +133,8 @@ class StreamingAligner:
         self._rowmin = _Grow((), float)
         self._rowarg = _Grow((), np.int64)
         self._rowmean = _Grow((), float)
+        b = p["jump_bin"]
+        self._jsrc = _Grow(((m + b - 1) // b if b > 0 else 1,), np.int64)   # jump sources
         self._block_rows = int(np.clip(2**22 // m, 16, 4096))
         self._blocks: list[np.ndarray] = []
         self._tpath = _Grow((), np.int64)    # traceback of the tail (tail())
@@ -198,7 +200,7 @@ class StreamingAligner:
         if r1 <= r0:
             return
         self._row_geometry(r0, r1)
-        for buf in (self._rowmin, self._rowarg, self._rowmean):
+        for buf in (self._rowmin, self._rowarg, self._rowmean, self._jsrc):
             buf.ensure(r1)
         p, e = self._p, self.engine
         arow, alo, ahi = self.anchor_bands(r0, r1)
@@ -221,8 +223,9 @@ class StreamingAligner:
                            self._run.a, p["bf"], p["bs"], float(e.jump_penalty),
                            float(e.strain_penalty), self._F, self._E, self._rowmin.a,
                            self._rowarg.a, self._rowmean.a, blk, row0, p["off"],
-                           p["off"] + p["m_ref"], p["off_cost"], p["jump_free"],
-                           p["jump_slope"], arow, alo, ahi, p["anchor_cost"])
+                           p["off"] + p["m_ref"], p["off_cost"], p["jump_bin"],
+                           p["jump_wbins"], p["slope_bin"], self._jsrc.a, arow, alo, ahi,
+                           p["anchor_cost"])
             r = rend
 
     # -- state ---------------------------------------------------------------------------------
@@ -275,14 +278,13 @@ class StreamingAligner:
             k0 = max(0, stop - b * B)
             r, j = K.traceback_block(self._blocks[b][k0:], b * B + k0, r, j, self._Rr.a,
                                      self._sig.a, p["bf"], p["bs"], self._rowarg.a, path,
-                                     landing, jumped, p["jump_free"])
+                                     landing, jumped, p["jump_bin"], self._jsrc.a)
             if r < 0:
                 break
         # start on a landing cell entered by FOLLOW (or the path's START): a traceback from the
         # tail's last row then ends exactly there
         for lo in range(r + 1, n - 8):
-            if landing[lo] and (self._blocks[lo // B][lo % B, path[lo]] & K.MOVE) in (K.FOLLOW,
-                                                                                     K.START):
+            if landing[lo] and self._blocks[lo // B][lo % B, path[lo]] in (K.FOLLOW, K.START):
                 break
         else:
             return None
