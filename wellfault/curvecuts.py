@@ -369,8 +369,15 @@ def _mispicks(anchors: list[_Anchor], s: np.ndarray, inp: _Inputs, settings: Cur
         miss = np.abs(s - s_pick)
         where = ""
         if np.isfinite(miss).any() and np.nanmin(miss) <= tol:
-            near = np.flatnonzero(miss <= tol)
-            md_c = float(inp.md[near[np.argmin(np.abs(near - a.sample))]])
+            ok = miss <= tol
+            near = np.flatnonzero(ok)
+            c = int(near[np.argmin(np.abs(near - a.sample))])   # the nearest crossing:
+            lo, hi = c, c                                        # its run's best sample
+            while lo > 0 and ok[lo - 1]:
+                lo -= 1
+            while hi + 1 < ok.size and ok[hi + 1]:
+                hi += 1
+            md_c = float(inp.md[lo + int(np.argmin(miss[lo:hi + 1]))])
             where = f"; the curves place it at MD {md_c * k:.1f} {unit.suffix}"
         else:
             where = "; the curves do not find it in this well"

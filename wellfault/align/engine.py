@@ -27,8 +27,9 @@ dynamic warping (2013) — in lag ``ℓ = j − round(predicted position)``:
 * FAST   — ``bf = ceil(1/(k−1))`` rows, lag +1 in the direction of travel: ``bf+1`` reference
   samples in ``bf`` rows, a ratio ``(bf+1)/bf <= k``;
 * SLOW   — ``bs = ceil(k/(k−1))`` rows, lag −1: ``(bs−1)/bs >= 1/k``;
-* JUMP   — one row, to *any* reference sample, forward or backward, cost ``jump_penalty``;
-  it comes from the best cell of the previous row, so its source is one integer per row.
+* JUMP   — one row, to *any* reference sample, forward or backward, cost ``jump_penalty``
+  (plus the jump-size prior's excess, below); without the prior it comes from the best cell
+  of the previous row, so its source is one integer per row.
 
 For the default ``k = 1.5``: ``bf = 2``, ``bs = 3``, local slopes 3/2, 1 and 2/3 — the stretch
 window holds on every move and over any run of moves; the price is that a lag change is
@@ -45,10 +46,11 @@ Nothing lets the path stall for free: not moving when a move is predicted needs 
 Exactness and cost
 ------------------
 The DP is exact: the global minimum over all such paths, with free start and end in the
-reference (checked against exhaustive enumeration in tests/test_align_engine.py). Time
-O(R·M) with O(1) work per cell in a branch-free, vectorised row pass; memory: one byte per
-(row, reference sample) for the move codes, plus O(M) cost rows and O(R + N) per-row/sample
-arrays. ``R`` = total predicted strat arc length in reference samples: ``R <= N`` while
+reference (checked against exhaustive enumeration in tests/test_align_engine.py, with the
+jump-size prior and anchors too). Time O(R·M) with O(1) work per cell in a branch-free,
+vectorised row pass; memory: one byte per (row, reference sample) for the move codes, plus
+O(M) cost rows, O(R + N) per-row/sample arrays and, with the prior, one source per row and
+prior bin. ``R`` = total predicted strat arc length in reference samples: ``R <= N`` while
 ``|step| <= 1``; ``R ≈ N·|step|`` in high-angle wells. The forward pass runs one row at a time
 (:class:`~wellfault.align.stream.StreamingAligner`); :meth:`AlignmentEngine.align` is one push.
 
@@ -63,6 +65,47 @@ well's own median and spread (as before) left the level wrong by half a spread o
 of wells on real gamma-ray type logs, and a path over wrongly standardised curves hops between
 chance matches (jumps of ±1000 m, tens per well). With it the level is right to 0.02 spread
 (90th percentile, 120 wells on the three real logs of benchmarks/bench_curves.py).
+
+Jump-size prior
+---------------
+With a constant jump cost, a type log with little character lets the path hop to a look-alike
+interval anywhere in the column (jumps of 1-2 km of TST where the field's faults have tens of
+metres). With ``jump_free = D`` a jump's cost grows with its size beyond D: columns are grouped
+in bins of ``B = ceil(D / jump_bins)`` reference samples, ``w = ceil(D / B)`` bins are free, and
+a jump from column i to column j costs ``jump_penalty + jump_slope·B·max(0, |i//B − j//B| − w)``
+— free up to D (give or take a bin), then ``jump_slope`` per sample (by default
+``PRIOR_EXCESS·jump_penalty/D`` = ``jump_penalty/D``: a jump of k·D costs k plain jumps). A
+steeper slope buys nothing: a staircase of k jumps of D each, one row apart, costs k jumps
+and a few rows of misfit, so the path would split an implausible jump into a staircase of
+plausible-looking ones (several false cuts instead of one flagged cut); with this slope the
+single jump is never dearer than its staircase.
+The size is the reference displacement between the two rows (Δs plus the predicted one-sample
+move). The DP stays exact for this cost (oracle-tested): per row, the best cell of every bin
+of the previous row (one vectorised minimum over the row), the best source bin of every
+landing bin (a minimum over the ``2w + 1`` bins around it, then a two-pass linear distance
+transform over the bins with slope ``jump_slope·B``), and the jump cost written per column
+— O(M + (M/B)·w) per row; the source column of each landing bin is kept per row (``R·M/B``
+int64, an eighth of a byte per cell for B = 64), so the traceback recovers every jump's
+source without storing one per cell. Why bins: the per-column prior (windowed minimum of half-
+width D, then a linear distance transform, also O(M) per row and exact) was built first and
+measured 3-6 times the whole DP's time, its four sequential scans per row do not vectorise;
+a prior is a soft preference, and a resolution of D/8 in its size costs it nothing.
+``jump_free = None`` (the default of this array-level class) keeps the constant cost.
+
+Anchors
+-------
+Picked tops, when given with the curves, constrain the path: an anchor ``(sample, position,
+tolerance)`` says that well sample ``sample`` lies at reference position ``position`` within
+``tolerance`` samples. On the anchor's row every column whose position for that sample
+(``sample_position + column − row centre``) is farther than the tolerance costs
+``anchor_cost`` more (default ``ANCHOR_COST_JUMPS·jump_penalty`` = 1.5 jumps), on every move
+through that row. The cost is finite on purpose: where the curves are ambiguous the pick
+decides (any path honouring it is cheaper by the anchor cost), but a pick the curves clearly
+contradict over many rows is not forced — the path then pays the cost, and the well-level
+wiring reports the pick as a possible mis-pick instead of bending the alignment into an
+absurd detour; less than two jumps, so a detour out and back just to touch a wrong pick never
+pays. Anchor costs are in the DP (oracle-tested) and in the cut evidence's window DPs, not in
+the local fit quality.
 
 Off the type log
 ----------------
@@ -163,7 +206,7 @@ CONFIDENCE_COEF: tuple[float, float, float, float] = (-15.75, -0.1323, 14.59, 1.
 
 #: Default slope of the jump-size prior: a jump twice the plausible size costs
 #: ``1 + PRIOR_EXCESS`` plain jumps (module docstring, "Jump-size prior").
-PRIOR_EXCESS = 4.0
+PRIOR_EXCESS = 1.0
 #: Default cost of a row outside its anchor's band, in plain jumps (module docstring,
 #: "Anchors").
 ANCHOR_COST_JUMPS = 1.5
