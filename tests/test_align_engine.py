@@ -282,6 +282,31 @@ def test_streaming_sample_by_sample_equals_batch():
     assert [j.sample for j in batch.jumps] == [200]
 
 
+def test_streaming_with_prior_and_anchors_equals_batch():
+    """Anchors are placed on rows as the rows are made, and jump sources are kept per row:
+    pushing sample by sample, with the prior and anchors (one of them contradicting the
+    curves), gives the batch result, the tail included."""
+    well, step, _, c, s, _ = _turning_well()
+    eng = AlignmentEngine(_turning_well()[2].ref, jump_free=28, jump_bins=8)
+    pos = 150 + np.cumsum(step)                      # the true positions (_turning_well)
+    pos[200:] += 35.0
+    anchors = [(60, pos[60], 1.0), (150, pos[150], 2.0), (250, pos[250] + 30.0, 1.0)]
+    batch = eng.align(well, step, center=c, scale=s, anchors=anchors)
+    st = eng.stream(center=c, scale=s, anchors=anchors)
+    for i in range(well.shape[0]):
+        st.push(well[i], step[i])
+    live = st.current()
+    assert live.score == batch.score
+    np.testing.assert_array_equal(live.path, batch.path)
+    assert live.jumps == batch.jumps
+    assert len(batch.jumps) == 1 and abs(batch.jumps[0].sample - 200) <= 6
+    tail = st.tail(120)
+    np.testing.assert_array_equal(tail.alignment.path,
+                                  batch.path[tail.sample0:tail.sample_end])
+    with pytest.raises(InputError, match="anchors must be finite"):
+        eng.align(well, step, anchors=[(0, 1.0, -1.0)])
+
+
 def test_tail_of_the_stream_is_the_batch_alignment_of_its_rows():
     """``StreamingAligner.tail`` traces only the last rows, yet gives the optimal path's own
     positions and jump there (the property a well being drilled relies on)."""
@@ -347,6 +372,11 @@ def test_traceback_memory_is_one_byte_per_row_and_reference_sample():
         ({"misfit": "l2"}, "unknown misfit"),
         ({"weights": [1.0, 2.0]}, "weights"),
         ({"min_rate": 0.0}, "min_rate"),
+        ({"jump_free": -1}, "jump_free must be a whole number"),
+        ({"jump_free": 2.5}, "jump_free must be a whole number"),
+        ({"jump_free": 10, "jump_bins": 0}, "jump_bins"),
+        ({"jump_slope": -1.0}, "jump_slope must be >= 0"),
+        ({"anchor_cost": -1.0}, "anchor_cost must be >= 0"),
     ],
 )
 def test_bad_engine_arguments_are_named_in_the_error(kwargs, match):

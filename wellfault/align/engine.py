@@ -136,7 +136,7 @@ two jump-free DPs (forward from the path's cell at the window start, backward fr
 near its cell at the window end) give the best cost with one jump landing on each row of the
 window — ``bracket``: the rows where it costs at most ``bracket_tolerance`` more than the best —
 and the best cost with no jump in the window. ``margin`` = no-jump cost − best one-jump cost
-(the jump penalty included): the evidence that a cut, not stretch, explains the window.
+(the jump's own cost included: penalty and any prior excess; anchors cost in both): the evidence that a cut, not stretch, explains the window.
 ``correlation`` is the smaller of the well/type-log correlations along the path above and
 below the cut over the same window; ``run`` (:attr:`Jump.rows_above`, :attr:`Jump.rows_below`,
 the smaller) how many rows the well keeps following the type log without another jump.
