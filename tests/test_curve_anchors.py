@@ -115,3 +115,15 @@ def test_detect_command_takes_the_separation_in_the_input_unit(tmp_path):
     (flagged,) = pd.read_csv(out).itertuples()
     assert "beyond the plausible separation" in flagged.notes
     assert np.isclose(flagged.md_ft, cut.md_ft, atol=5.0)
+
+
+def test_picks_of_another_well_give_one_note_not_a_mis_pick_per_pick(column):
+    # common practice: when a well's log follows none of its picks, the picks or the log are
+    # wrong as a whole; blaming each pick would bury the finding
+    sc = curve_scenario(506, column, kinds=("vertical",), max_faults=0)
+    picks = _picks(sc)
+    shifted = picks.assign(md_m=picks["md_m"] + 40.0)
+    res = find_cuts_from_curves(sc.well, column, sc.trajectory, bed_dip=sc.bed_dip,
+                                picks=shifted)
+    (only,) = res.mispicks
+    assert only[0] == "" and "the curves honour only" in only[2]

@@ -176,7 +176,8 @@ class CurveResult:
     track: pd.DataFrame
     alignment: object  # wellfault.align.Alignment
     curves: tuple[str, ...]
-    #: picks the curves do not honour: (surface, pick MD [m], note)
+    #: picks the curves do not honour: (surface, pick MD [m], note); one entry with surface
+    #: "" when the curves honour too few picks to single any out
     mispicks: list[tuple[str, float, str]] = dataclasses.field(default_factory=list)
     #: the plausible separation the jump-size prior used [m TST] (inf: no prior)
     max_separation_m: float = math.inf
@@ -358,7 +359,9 @@ def _align(inp: _Inputs, column: ReferenceColumn, settings: CurveSettings,
 def _mispicks(anchors: list[_Anchor], s: np.ndarray, inp: _Inputs, settings: CurveSettings,
               unit) -> list[tuple[str, float, str]]:
     """Picks the aligned path does not honour (outside the tolerance and a sample), each with
-    a note saying where the curves place the surface, in the well's depth unit."""
+    a note saying where the curves place the surface, in the well's depth unit. When most of
+    them (and at least three) are not honoured, one note says so instead: the curves do not
+    correlate with the picks, which is no finding about any one pick."""
     out = []
     k = 1.0 / unit.metres
     for a in anchors:
@@ -383,6 +386,12 @@ def _mispicks(anchors: list[_Anchor], s: np.ndarray, inp: _Inputs, settings: Cur
             where = "; the curves do not find it in this well"
         out.append((a.surface, a.md_m, f"possible mis-pick: {a.surface} picked at MD "
                     f"{a.md_m * k:.1f} {unit.suffix}{where}"))
+    if len(out) >= 3 and len(out) > len(anchors) // 2:
+        # most picks contradicted: the curves do not correlate here, the picks are not at fault
+        note = (f"the curves honour only {len(anchors) - len(out)} of {len(anchors)} picks: "
+                "the curve alignment does not follow this well's picks (curve evidence "
+                "unreliable here, or the picks belong to another column)")
+        return [("", a.md_m, note) for a in anchors[:1]]
     return out
 
 

@@ -168,6 +168,9 @@ def _note_mispicks(tops_cuts: list[FaultCut], mispicks, well) -> list[FaultCut]:
     mis-pick (the picks a tops cut rests on may be the cut's whole evidence)."""
     out = list(tops_cuts)
     for surface, md, note in mispicks:
+        if not surface:                   # the curves follow none of the picks: no one pick
+            warnings.warn(f"well {well.name!r}: {note}", WellfaultWarning, stacklevel=3)
+            continue
         warnings.warn(f"well {well.name!r}: {note}; check the pick (the curve evidence was "
                       "aligned around it)", WellfaultWarning, stacklevel=3)
         for k, c in enumerate(out):
