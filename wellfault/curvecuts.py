@@ -121,7 +121,7 @@ class CurveSettings:
         if d is None and column_m is not None:
             d = plausible_separation_m(column_m)
         if d is not None and math.isfinite(d):
-            kw["jump_free"] = int(math.ceil(d / ds_m))
+            kw["jump_free"] = math.ceil(d / ds_m)
         kw.update(dict(self.engine))
         return kw
 
@@ -384,8 +384,8 @@ def _mispicks(anchors: list[_Anchor], s: np.ndarray, inp: _Inputs, settings: Cur
             where = f"; the curves place it at MD {md_c * k:.1f} {unit.suffix}"
         else:
             where = "; the curves do not find it in this well"
-        out.append((a.surface, a.md_m, f"possible mis-pick: {a.surface} picked at MD "
-                    f"{a.md_m * k:.1f} {unit.suffix}{where}"))
+        note = f"possible mis-pick: {a.surface} picked at MD {a.md_m * k:.1f} {unit.suffix}"
+        out.append((a.surface, a.md_m, note + where))
     if len(out) >= 3 and len(out) > len(anchors) // 2:
         # most picks contradicted: the curves do not correlate here, the picks are not at fault
         note = (f"the curves honour only {len(anchors) - len(out)} of {len(anchors)} picks: "

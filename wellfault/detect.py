@@ -17,8 +17,12 @@ import numpy as np
 import pandas as pd
 
 from .column import ReferenceColumn
-from .curvecuts import (CurveSettings, combine_evidence, find_cuts_from_curves,
-                        plausible_separation_m)
+from .curvecuts import (
+    CurveSettings,
+    combine_evidence,
+    find_cuts_from_curves,
+    plausible_separation_m,
+)
 from .dip import BedDip
 from .errors import InputError, SurveyError, WellfaultWarning, input_error
 from .measure import FaultAssumptions
