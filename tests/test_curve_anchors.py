@@ -127,3 +127,5 @@ def test_picks_of_another_well_give_one_note_not_a_mis_pick_per_pick(column):
                                 picks=shifted)
     (only,) = res.mispicks
     assert only[0] == "" and "the curves honour only" in only[2]
+    plain = find_cuts_from_curves(sc.well, column, sc.trajectory, bed_dip=sc.bed_dip)
+    assert res.alignment.score == plain.alignment.score     # no detours to touch them

@@ -462,12 +462,18 @@ def find_cuts_from_curves(
 
     With ``picks``, each picked surface of the column that the type log covers anchors the
     alignment (``settings.pick_tolerance_m``); a pick the aligned path does not honour is
-    listed in ``CurveResult.mispicks`` with a "possible mis-pick" note.
+    listed in ``CurveResult.mispicks`` with a "possible mis-pick" note. When the path honours
+    too few of them to single any out (:func:`_mispicks`), the curves do not correlate with
+    the picks: the anchors would only pull the path into detours (spurious jumps), so the
+    curves are aligned again without them and the one note stays.
     """
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
     inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
     anchors = _anchors(picks, column, inp)
     alignment, s, plausible = _align(inp, column, settings, anchors)
+    mis = _mispicks(anchors, s, inp, settings, well.depth_unit)
+    if mis and not mis[0][0]:          # the curves follow too few picks: anchors only detour
+        alignment, s, plausible = _align(inp, column, settings, [])
     ds, names = inp.ds, inp.names
     conf = np.asarray(alignment.confidence, dtype=float)
     track = inp.track(s, column.unit_at(s), np.where(np.isfinite(s), conf, 0.0))
@@ -499,7 +505,6 @@ def find_cuts_from_curves(
                          rows_above=int(j.rows_above), rows_below=int(j.rows_below),
                          beyond_plausible=bool(beyond))
         cuts.append(cut)
-    mis = _mispicks(anchors, s, inp, settings, well.depth_unit)
     return CurveResult(cuts, track, alignment, names, mis, plausible)
 
 
