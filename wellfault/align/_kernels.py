@@ -84,19 +84,16 @@ def _jump_costs(F, pad, m, B, w, slope_bin, bmin, barg, out, src):
     """
     nb = (m + B - 1) // B
     for q in range(nb):
-        s0 = q * B
-        L = min(B, m - s0)
-        v = _row_min(F, pad + s0, L)
-        bmin[q] = v
-        barg[q] = s0 + _first_index(F, pad + s0, L, v)
+        bmin[q] = _row_min(F, pad + q * B, min(B, m - q * B))
+        barg[q] = -1                            # the bin's best column, found when used
     hb = bmin[nb:2 * nb]
-    for q in range(nb):
+    for q in range(nb):                         # source bins first, their columns at the end
         best = INF
-        arg = barg[q]
+        arg = q
         for q2 in range(max(0, q - w), min(nb, q + w + 1)):
             if bmin[q2] < best:
                 best = bmin[q2]
-                arg = barg[q2]
+                arg = q2
         hb[q] = best
         src[q] = arg
     for q in range(1, nb):
@@ -113,6 +110,10 @@ def _jump_costs(F, pad, m, B, w, slope_bin, bmin, barg, out, src):
         s0 = q * B
         o = out[s0:min(s0 + B, m)]
         o[:] = hb[q]
+        b = src[q]
+        if barg[b] < 0:
+            barg[b] = b * B + _first_index(F, pad + b * B, min(B, m - b * B), bmin[b])
+        src[q] = barg[b]
 
 
 @njit(cache=True)
