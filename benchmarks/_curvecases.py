@@ -25,11 +25,29 @@ def reference_data() -> Path:
     return Path(env) if env else Path(__file__).resolve().parents[2] / "shared" / "reference_data"
 
 
+LOW = "low"
+
+
+def low_name(log: str, seed: int) -> str:
+    """Case source name of the low-character type log ``seed`` of a real log."""
+    return f"{LOW}:{log}:{seed}"
+
+
+@lru_cache(maxsize=None)
+def low_log(name: str):
+    from wellfault.scenarios import low_character_log
+
+    _, log, seed = name.split(":")
+    return low_character_log(log, reference_data(), int(seed))
+
+
 @lru_cache(maxsize=None)
 def column(name: str):
     from wellfault.forward import synthetic_column
     from wellfault.scenarios import real_gr_column
 
+    if name.startswith(LOW + ":"):
+        return low_log(name).type_log
     if name == INVENTED:   # an invented column of about the same length, for contrast
         return synthetic_column(24, seed=5, curves=("GR",), name="invented column")
     return real_gr_column(name, reference_data())
@@ -40,10 +58,13 @@ def run_case(case, methods=("engine",), settings=None):
     from wellfault.curvecuts import (CurveSettings, find_cuts_dtw_baseline,
                                      find_cuts_from_curves, find_cuts_lag_screen)
     from wellfault.evaluation import score_scenario
-    from wellfault.scenarios import curve_scenario
+    from wellfault.scenarios import curve_scenario, low_character_scenario
 
     label, src, dst, seed, kw = case
-    sc = curve_scenario(seed, column(src), **kw)
+    if src.startswith(LOW + ":"):
+        sc = low_character_scenario(seed, low_log(src), **kw)
+    else:
+        sc = curve_scenario(seed, column(src), **kw)
     col = column(dst)
     settings = settings or CurveSettings()
     fns = {"engine": find_cuts_from_curves, "dtw": find_cuts_dtw_baseline,
@@ -69,6 +90,12 @@ def run_case(case, methods=("engine",), settings=None):
                       for c in res.cuts]
         out[m] = (rows, det, dt)
     return out
+
+
+def low_cases(label: str, log_seeds, seeds, **kw):
+    """Cases on the low-character type logs ``log_seeds`` of each real log, wells ``seeds``."""
+    return [(label, low_name(log, k), low_name(log, k), int(s), kw)
+            for log in REAL for k in log_seeds for s in seeds]
 
 
 def cases(label: str, logs, seeds, dst=None, **kw):

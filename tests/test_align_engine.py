@@ -52,8 +52,14 @@ def _oracle_best(rows, ref, *, w, stretch, jump, strain, kind, delta, null_misfi
     return _oracle_over_costs(rows, e, stretch=stretch, jump=jump, strain=strain)
 
 
-def _oracle_over_costs(rows, e, *, stretch, jump, strain):
-    """Exhaustive minimum over every path through the cost table ``e[row][column]``."""
+def _oracle_over_costs(rows, e, *, stretch, jump, strain, jump_free=None, jump_slope=0.0,
+                       jump_bins=8):
+    """Exhaustive minimum over every path through the cost table ``e[row][column]``.
+
+    A jump from column j to jn costs ``jump``, plus, when ``jump_free`` is given, ``jump_slope``
+    per column of bin distance beyond the free bins: columns in bins of
+    ``B = max(1, ceil(jump_free / jump_bins))``, ``w = ceil(jump_free / B)`` bins free
+    (engine.py, "Jump-size prior")."""
     R, M = rows.n_rows, len(e[0])
     Rr = [math.floor(c + 0.5) for c in rows.centre]
     sig = list(rows.direction)
@@ -78,7 +84,12 @@ def _oracle_over_costs(rows, e, *, stretch, jump, strain):
             if all(0 <= c < M for _, c in cells):
                 rec(rl, jl, cost + strain + sum(e[t][c] for t, c in cells))
         for jn in range(M):                                          # JUMP (anywhere)
-            rec(r + 1, jn, cost + jump + e[r + 1][jn])
+            extra = 0.0
+            if jump_free is not None:
+                b = max(1, math.ceil(jump_free / jump_bins))
+                over = abs(jn // b - j // b) - math.ceil(jump_free / b)
+                extra = jump_slope * b * over if over > 0 else 0.0
+            rec(r + 1, jn, cost + jump + extra + e[r + 1][jn])
 
     for j in range(M):
         rec(0, j, e[0][j])
@@ -142,6 +153,87 @@ def test_oracle_cases_cover_jumps_stretch_moves_and_turning_points():
     assert all(v >= 5 for v in seen.values()), seen
 
 
+def _with_anchors(e, rows, anchors, cost):
+    """The cost table with ``cost`` added on each anchor's row outside its band: sample i at
+    column j lies at position sample_position[i] + j − centre[row] (engine.py, "Anchors")."""
+    e = [list(r) for r in e]
+    for i, pos, tol in anchors:
+        r = int(rows.sample_row[int(i)])
+        for j in range(len(e[r])):
+            p = rows.sample_position[int(i)] + j - rows.centre[r]
+            if abs(p - pos) > tol + 1e-9:
+                e[r][j] += cost
+    return e
+
+
+def _prior_anchor_case(seed):
+    well, ref, step, prm = _random_case(seed)
+    rng = np.random.default_rng(seed + 1000)
+    m = ref.shape[0]
+    prm.update(jump_penalty=float(rng.uniform(0.02, 0.5)),   # cheap jumps: many to price
+               jump_free=int(rng.integers(0, 3)), jump_bins=int(rng.choice([1, 2, 8])),
+               jump_slope=float(rng.choice([0.5, 2.0, math.inf])),
+               anchor_cost=float(rng.choice([0.5, 2.0])))
+    anchors = [(int(rng.integers(well.shape[0])), float(rng.uniform(-0.5, m - 0.5)),
+                float(rng.choice([0.0, 0.5, 1.0]))) for _ in range(int(rng.integers(0, 3)))]
+    return well, ref, step, prm, anchors
+
+
+@pytest.mark.parametrize("seed", list(range(80)))
+def test_engine_with_prior_and_anchors_equals_exhaustive_search(seed):
+    """The jump-size prior and the anchor bands keep the DP exact."""
+    well, ref, step, prm, anchors = _prior_anchor_case(seed)
+    eng = AlignmentEngine(ref, standardise=False, min_rate=0.1, **prm)
+    al = eng.align(well, step, anchors=anchors or None)
+    rows = resample_strat(well, step, min_rate=0.1)
+    lo, hi = _plain_bounds(ref, prm["subsample"])
+    e = [[_plain_misfit(rows.values[r], lo[j], hi[j], prm["weights"], prm["misfit"],
+                        prm["huber_delta"], 0.5) for j in range(ref.shape[0])]
+         for r in range(rows.n_rows)]
+    want = _oracle_over_costs(rows, _with_anchors(e, rows, anchors, prm["anchor_cost"]),
+                              stretch=prm["stretch"], jump=prm["jump_penalty"],
+                              strain=prm["strain_penalty"], jump_free=prm["jump_free"],
+                              jump_slope=prm["jump_slope"], jump_bins=prm["jump_bins"])
+    assert al.score == pytest.approx(want, rel=1e-9, abs=1e-9)
+
+
+def test_prior_and_anchor_cases_are_not_vacuous():
+    """The prior changes the optimum in some cases, anchors in others, and the traceback
+    recovers jump sources beyond the free size (checked by the path cost test below)."""
+    changed = {"prior": 0, "anchors": 0}
+    for seed in range(80):
+        well, ref, step, prm, anchors = _prior_anchor_case(seed)
+        plain = {k: v for k, v in prm.items() if k not in ("jump_free", "jump_slope",
+                                                             "jump_bins", "anchor_cost")}
+        s0 = AlignmentEngine(ref, standardise=False, **plain).align(well, step).score
+        s1 = AlignmentEngine(ref, standardise=False, **prm).align(well, step).score
+        s2 = AlignmentEngine(ref, standardise=False, **prm).align(
+            well, step, anchors=anchors or None).score
+        changed["prior"] += int(s1 > s0 + 1e-9)
+        changed["anchors"] += int(s2 > s1 + 1e-9)
+    assert all(v >= 5 for v in changed.values()), changed
+
+
+def test_path_with_prior_costs_the_reported_score():
+    """Jumps beyond the free size are traced back to their true source: the returned path's
+    own cost (misfits, strain, jump penalty and prior excess per jump) is the score."""
+    rng = np.random.default_rng(4)
+    ref = rng.normal(size=(400, 2))
+    well = np.vstack([ref[5:65], ref[300:360], ref[150:210]]) + 0.05 * rng.normal(size=(180, 2))
+    eng = AlignmentEngine(ref, standardise=False, jump_penalty=1.0, jump_free=20,
+                          jump_slope=0.01, jump_bins=20)
+    al = eng.align(well, np.ones(180))
+    e = np.abs(well - ref[al.row_path])
+    mis = np.where(e <= 1.0, 0.5 * e**2, e - 0.5).mean(axis=1)
+    lag = al.row_path - np.arange(180)
+    d = np.diff(al.row_path)
+    jumps = np.flatnonzero(np.abs(d - 1) > 1)
+    n_strain = int(np.count_nonzero(np.diff(lag))) - len(jumps)
+    prior = sum(0.01 * max(abs(int(d[k])) - 20, 0) for k in jumps)
+    assert len(al.jumps) == 2 and prior > 1.0
+    assert al.score == pytest.approx(mis.sum() + len(jumps) * 1.0 + n_strain * 0.05 + prior)
+
+
 def test_returned_path_costs_the_reported_score():
     rng = np.random.default_rng(3)
     ref = rng.normal(size=(60, 2))
@@ -188,6 +280,31 @@ def test_streaming_sample_by_sample_equals_batch():
     np.testing.assert_array_equal(live.path, batch.path)
     assert live.jumps == batch.jumps
     assert [j.sample for j in batch.jumps] == [200]
+
+
+def test_streaming_with_prior_and_anchors_equals_batch():
+    """Anchors are placed on rows as the rows are made, and jump sources are kept per row:
+    pushing sample by sample, with the prior and anchors (one of them contradicting the
+    curves), gives the batch result, the tail included."""
+    well, step, _, c, s, _ = _turning_well()
+    eng = AlignmentEngine(_turning_well()[2].ref, jump_free=28, jump_bins=8)
+    pos = 150 + np.cumsum(step)                      # the true positions (_turning_well)
+    pos[200:] += 35.0
+    anchors = [(60, pos[60], 1.0), (150, pos[150], 2.0), (250, pos[250] + 30.0, 1.0)]
+    batch = eng.align(well, step, center=c, scale=s, anchors=anchors)
+    st = eng.stream(center=c, scale=s, anchors=anchors)
+    for i in range(well.shape[0]):
+        st.push(well[i], step[i])
+    live = st.current()
+    assert live.score == batch.score
+    np.testing.assert_array_equal(live.path, batch.path)
+    assert live.jumps == batch.jumps
+    assert len(batch.jumps) == 1 and abs(batch.jumps[0].sample - 200) <= 6
+    tail = st.tail(120)
+    np.testing.assert_array_equal(tail.alignment.path,
+                                  batch.path[tail.sample0:tail.sample_end])
+    with pytest.raises(InputError, match="anchors must be finite"):
+        eng.align(well, step, anchors=[(0, 1.0, -1.0)])
 
 
 def test_tail_of_the_stream_is_the_batch_alignment_of_its_rows():
@@ -255,6 +372,11 @@ def test_traceback_memory_is_one_byte_per_row_and_reference_sample():
         ({"misfit": "l2"}, "unknown misfit"),
         ({"weights": [1.0, 2.0]}, "weights"),
         ({"min_rate": 0.0}, "min_rate"),
+        ({"jump_free": -1}, "jump_free must be a whole number"),
+        ({"jump_free": 2.5}, "jump_free must be a whole number"),
+        ({"jump_free": 10, "jump_bins": 0}, "jump_bins"),
+        ({"jump_slope": -1.0}, "jump_slope must be >= 0"),
+        ({"anchor_cost": -1.0}, "anchor_cost must be >= 0"),
     ],
 )
 def test_bad_engine_arguments_are_named_in_the_error(kwargs, match):

@@ -470,6 +470,7 @@ def test_screening_with_curves_finds_every_demo_cut_on_the_sample():
                        type_well=field / "VR_1.las", type_tops=field / "tops.csv",
                        workers=1, progress=False, fit=False)
     assert len(res.errors) == 0
+    assert 50.0 <= res.info["max_separation_m"] <= 250.0      # pass 2b ran
     truth = pd.read_csv(field / "truth_cuts.csv")
     cuts = res.cuts
     for tr in truth.itertuples():
@@ -477,3 +478,23 @@ def test_screening_with_curves_finds_every_demo_cut_on_the_sample():
                     & (cuts.md_top_m <= tr.md_m) & (tr.md_m <= cuts.md_base_m)]
         assert len(mine) == 1, tr.well
         assert mine.iloc[0].section == tr.section
+
+
+def test_field_separation_narrows_the_prior_and_picks_the_wells_to_read_again():
+    """Pass 2b: the field's plausible separation is 1.5 x the 90th percentile of its confident
+    cuts' |Δs| (within the column's default), and only wells with a curve cut beyond it are
+    read again."""
+    from wellfault.forward import synthetic_column
+    from wellfault.screen import _field_separation
+
+    col = synthetic_column(24, seed=5, curves=("GR",))     # a type log of ~1000 m: 250 m
+    cut = {"method": "tops", "confidence": 0.9, "delta_s_m": 20.0}
+    out = {i: {"c": [dict(cut, delta_s_m=10.0 + i)]} for i in range(10)}
+    out[10] = {"c": [{"method": "curves", "confidence": 0.3, "delta_s_m": -600.0}]}
+    out[11] = {"c": [{"method": "both", "confidence": 0.8, "delta_s_m": 15.0}]}
+    d, again = _field_separation(col, out)
+    seps = [10.0 + i for i in range(10)] + [15.0]
+    assert d == pytest.approx(max(50.0, 1.5 * np.quantile(seps, 0.9)))
+    assert again == [10]
+    few = {i: out[i] for i in (0, 1, 10)}                   # too few confident cuts: default
+    assert _field_separation(col, few) == (pytest.approx(250.0), [])

@@ -64,6 +64,11 @@ def _add_detect(sub):
     p.add_argument("--curve", action="append", metavar="NAME[:WEIGHT]",
                    help="curve to align (repeatable, optional weight, e.g. --curve GR:2 "
                         "--curve RHOB); default GR when a type well is given")
+    add_separation_option(p)
+    p.add_argument("--pick-tolerance", type=float, metavar="LENGTH",
+                   help="with --tops and a type well, each pick anchors the curve alignment "
+                        "within this much section (TST, input depth unit; default 2 m); a "
+                        "pick the curves cannot honour is noted as a possible mis-pick")
     p.add_argument("--depth-unit", choices=["m", "ft", "usft"],
                    help="depth unit of input files that do not state one")
     p.add_argument("--output-unit", choices=["m", "ft"],
@@ -81,6 +86,15 @@ def _add_detect(sub):
                    help="also write a self-contained HTML report of the well (cut table, "
                         "figures, assumptions, caution); - writes it to stdout")
     p.set_defaults(func=_cmd_detect)
+
+
+def add_separation_option(p) -> None:
+    """The ``--max-separation`` option of the commands that align curves."""
+    p.add_argument("--max-separation", type=float, metavar="LENGTH",
+                   help="largest plausible fault separation (TST, input depth unit): a larger "
+                        "jump of the curve alignment needs overwhelming evidence and is "
+                        "flagged in its row (default: from the type log's thickness and the "
+                        "tops)")
 
 
 def _add_survey(sub):
@@ -201,7 +215,8 @@ def _cmd_detect(args) -> int:
         dip_table=args.dip_table, fault=args.fault, pitch=args.pitch,
         type_well=args.type_well, type_tops=args.type_tops, type_survey=args.type_survey,
         curves=args.curve, depth_unit=args.depth_unit, output_unit=args.output_unit,
-        tolerance=TopsTolerance(args.tolerance, args.tolerance_floor))
+        tolerance=TopsTolerance(args.tolerance, args.tolerance_floor),
+        max_separation=args.max_separation, pick_tolerance=args.pick_tolerance)
     df = result.cuts
     _write_csv(df, args.out, args.decimals)
     suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"

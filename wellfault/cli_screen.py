@@ -16,6 +16,7 @@ import sys
 from . import CAUTION
 from .errors import InputError, WellfaultError
 from .precision import DECIMALS_HELP, DEFAULT_DECIMALS, decimals_option
+from .units import parse_depth_unit
 
 __all__ = ["add_screen_parser", "cmd_screen", "main"]
 
@@ -44,6 +45,11 @@ def add_screen_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--curve", action="append", metavar="NAME[:WEIGHT]",
                    help="curve to align, repeatable with weights (default GR; needs "
                         "--type-well)")
+    p.add_argument("--max-separation", type=float, metavar="LENGTH",
+                   help="largest plausible fault separation (TST, in --depth-unit, metres "
+                        "without it) for the curve alignment; larger jumps need overwhelming "
+                        "evidence and are flagged (default: from the type log and each "
+                        "well's tops, then from the field's own cuts in a second reading)")
     p.add_argument("--dip", metavar="DIP/AZI",
                    help="bed dip for wells without their own in the manifest, e.g. 12/075")
     p.add_argument("--out", metavar="DIR", required=True,
@@ -111,6 +117,8 @@ def cmd_screen(args) -> int:
             args.manifest, args.column, bed_dip=args.dip,
             tolerance=TopsTolerance(args.tolerance, args.tolerance_floor),
             type_well=args.type_well, type_tops=args.type_tops, curves=args.curve,
+            max_separation_m=None if args.max_separation is None else
+            args.max_separation * parse_depth_unit(args.depth_unit or "m").metres,
             neighbours=not args.no_neighbours, fit=not args.no_faults,
             depth_unit=args.depth_unit, unit=args.output_unit, workers=args.workers,
             client=client, progress=not args.no_progress, out_dir=args.out,

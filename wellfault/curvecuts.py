@@ -30,7 +30,7 @@ from .results import FaultCut
 
 __all__ = ["CurveSettings", "CurveResult", "align_well", "find_cuts_from_curves",
            "find_cuts_dtw_baseline", "find_cuts_lag_screen", "combine_evidence",
-           "predicted_steps", "parse_curve_spec"]
+           "predicted_steps", "parse_curve_spec", "plausible_separation_m"]
 
 
 @dataclass(frozen=True)
@@ -57,6 +57,17 @@ class CurveSettings:
       alignment for a strat increment of the whole gap in one row, and unlogged rock cannot
       be placed). ``inf`` turns it off. ``wellfault watch`` bridges gaps the same way.
 
+    * ``max_separation_m`` — the largest fault separation |Δs| the field makes plausible (TST):
+      a larger jump of the alignment costs more the larger it is (the engine's jump-size
+      prior, ``jump_free``), needs overwhelming curve evidence and is flagged in its row's
+      notes. None (default): :func:`plausible_separation_m` from the inputs (the type log's
+      thickness, and in :func:`wellfault.detect.analyse_well` the separations the tops show);
+      ``inf`` turns the prior off.
+    * ``pick_tolerance_m`` — with picks, each picked surface anchors the alignment: the well's
+      sample at the pick must lie within this strat distance (TST) of the surface in the type
+      log, or the path pays the engine's ``anchor_cost`` (engine.py, "Anchors"). A pick the
+      curves do not honour is reported as a possible mis-pick (:attr:`CurveResult.mispicks`).
+
     ``min_confidence`` is the least calibrated confidence of a reported cut (default 0.01: a
     jump the evidence gives under 1 % of being real — in practice a well that does not
     correlate with the type log there, e.g. rock the type log does not cover — is left in
@@ -70,11 +81,14 @@ class CurveSettings:
     calibrate_window_m: float = 9.0
     min_confidence: float = 0.01
     gap_m: float = 2.0
+    max_separation_m: float | None = None
+    pick_tolerance_m: float = 2.0
 
     @classmethod
     def make(cls, curves=None, *, min_jump_m: float = 2.0, off_log_m: float = 150.0,
              calibrate_window_m: float = 9.0, min_confidence: float = 0.01,
-             gap_m: float = 2.0, **engine) -> CurveSettings:
+             gap_m: float = 2.0, max_separation_m: float | None = None,
+             pick_tolerance_m: float = 2.0, **engine) -> CurveSettings:
         if curves is None:
             spec: tuple[tuple[str, float], ...] = (("GR", 1.0),)
         elif isinstance(curves, dict):
@@ -86,15 +100,52 @@ class CurveSettings:
             raise InputError("no curves to align; name at least one, e.g. --curve GR")
         if not float(gap_m) > 0:
             raise InputError(f"gap_m must be a positive length in metres (got {gap_m!r})")
+        if max_separation_m is not None and not float(max_separation_m) > 0:
+            raise InputError("the plausible fault separation must be a positive length "
+                             f"(got {max_separation_m!r}); e.g. --max-separation 200, or "
+                             "leave it out to derive it from the inputs")
+        if not float(pick_tolerance_m) >= 0:
+            raise InputError(f"the pick tolerance must be >= 0 m (got {pick_tolerance_m!r})")
         return cls(spec, float(min_jump_m), tuple(sorted(engine.items())), float(off_log_m),
-                   float(calibrate_window_m), float(min_confidence), float(gap_m))
+                   float(calibrate_window_m), float(min_confidence), float(gap_m),
+                   None if max_separation_m is None else float(max_separation_m),
+                   float(pick_tolerance_m))
 
-    def engine_kwargs(self, ds_m: float) -> dict:
-        """Keyword arguments for the engine on a type log of step ``ds_m``."""
+    def engine_kwargs(self, ds_m: float, column_m: float | None = None) -> dict:
+        """Keyword arguments for the engine on a type log of step ``ds_m`` and thickness
+        ``column_m`` (for the default plausible separation; without it and without
+        ``max_separation_m`` the engine runs without the jump-size prior)."""
         kw = dict(off_log=int(math.ceil(max(self.off_log_m, 0.0) / ds_m)),
                   calibrate_window=int(round(max(self.calibrate_window_m, 0.0) / ds_m)))
+        d = self.max_separation_m
+        if d is None and column_m is not None:
+            d = plausible_separation_m(column_m)
+        if d is not None and math.isfinite(d):
+            kw["jump_free"] = math.ceil(d / ds_m)
         kw.update(dict(self.engine))
         return kw
+
+
+#: Bounds of the default plausible separation [m TST] (:func:`plausible_separation_m`).
+SEPARATION_FLOOR_M, SEPARATION_CAP_M = 50.0, 250.0
+
+
+def plausible_separation_m(column_m: float, tops_separations_m=()) -> float:
+    """The default largest plausible fault separation |Δs| [m TST] of a field.
+
+    A quarter of the type log's thickness ``column_m``, kept within 50-250 m (from memory:
+    the faults a single well crosses mostly have separations of metres to a couple of hundred
+    metres; a jump over much of the column is a chance match on a log with little character),
+    raised to 1.5 times the largest separation the tops show (``tops_separations_m``) when
+    that is larger: the field's own faults are plausible by definition.
+
+    >>> plausible_separation_m(1400.0), plausible_separation_m(1400.0, [-300.0])
+    (250.0, 450.0)
+    """
+    d = min(max(0.25 * float(column_m), SEPARATION_FLOOR_M), SEPARATION_CAP_M)
+    seps = np.abs(np.asarray(tops_separations_m, dtype=float))
+    seps = seps[np.isfinite(seps)]
+    return max(d, 1.5 * float(seps.max())) if seps.size else d
 
 
 def parse_curve_spec(text: str) -> tuple[str, float]:
@@ -125,6 +176,11 @@ class CurveResult:
     track: pd.DataFrame
     alignment: object  # wellfault.align.Alignment
     curves: tuple[str, ...]
+    #: picks the curves do not honour: (surface, pick MD [m], note); one entry with surface
+    #: "" when the curves honour too few picks to single any out
+    mispicks: list[tuple[str, float, str]] = dataclasses.field(default_factory=list)
+    #: the plausible separation the jump-size prior used [m TST] (inf: no prior)
+    max_separation_m: float = math.inf
 
 
 def gap_fillers(md_above: float, md_below: float, nominal_m: float, gap_m: float
@@ -257,19 +313,96 @@ def _inputs(well, column, trajectory, bed_dip, settings, picks) -> _Inputs:
     return _Inputs(x, ref, weights, names, md, step, ds, s0, real)
 
 
-def align_well(well, column: ReferenceColumn, trajectory, *, bed_dip: BedDip | None = None,
-               settings: CurveSettings = CurveSettings(), picks=None):
-    """Align the well's curves to the type log; returns (Alignment, s of every sample [m],
-    curve names). ``s`` is NaN where the path runs off the type log."""
+@dataclass(frozen=True)
+class _Anchor:
+    surface: str
+    md_m: float
+    sample: int
+    position: float        # the surface in the type log [reference samples]
+
+
+def _anchors(picks, column: ReferenceColumn, inp: _Inputs) -> list[_Anchor]:
+    """The picks that can anchor the alignment: surfaces of the column inside the type log,
+    picked within the logged interval; each at the first sample at or below the pick."""
+    if picks is None or len(picks) == 0:
+        return []
+    names = set(column.names)
+    m = inp.ref.shape[0]
+    out = []
+    for surface, md in zip(picks["surface"].astype(str), picks["md_m"].to_numpy(float)):
+        if surface not in names or not inp.md[0] <= md <= inp.md[-1]:
+            continue
+        pos = (column.s_of(surface) - inp.s0) / inp.ds
+        if 0.0 <= pos <= m - 1:
+            i = min(int(np.searchsorted(inp.md, md, "left")), inp.md.size - 1)
+            out.append(_Anchor(surface, float(md), i, float(pos)))
+    return out
+
+
+def _align(inp: _Inputs, column: ReferenceColumn, settings: CurveSettings,
+           anchors: list[_Anchor]):
+    """(alignment, s of every sample [m], plausible separation [m]) for the prepared inputs."""
     from .align import AlignmentEngine
 
-    bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
-    inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
-    engine = AlignmentEngine(inp.ref, weights=inp.weights, **settings.engine_kwargs(inp.ds))
-    alignment = engine.align(inp.x, inp.step)
+    kw = settings.engine_kwargs(inp.ds, column_m=inp.ref.shape[0] * inp.ds)
+    engine = AlignmentEngine(inp.ref, weights=inp.weights, **kw)
+    tol = float(settings.pick_tolerance_m) / inp.ds
+    alignment = engine.align(inp.x, inp.step, anchors=[(a.sample, a.position, tol)
+                                                       for a in anchors] or None)
     s = inp.s0 + np.asarray(alignment.path, dtype=float) * inp.ds
     if alignment.on_log is not None:
         s = np.where(alignment.on_log, s, np.nan)        # off the type log: not placed
+    free = engine.jump_free
+    return alignment, s, math.inf if free is None else int(free) * inp.ds
+
+
+def _mispicks(anchors: list[_Anchor], s: np.ndarray, inp: _Inputs, settings: CurveSettings,
+              unit) -> list[tuple[str, float, str]]:
+    """Picks the aligned path does not honour (outside the tolerance and a sample), each with
+    a note saying where the curves place the surface, in the well's depth unit. When most of
+    them (and at least three) are not honoured, one note says so instead: the curves do not
+    correlate with the picks, which is no finding about any one pick."""
+    out = []
+    k = 1.0 / unit.metres
+    for a in anchors:
+        s_pick = inp.s0 + a.position * inp.ds
+        tol = float(settings.pick_tolerance_m) + inp.ds
+        if abs(s[a.sample] - s_pick) <= tol:              # NaN (off the log) is not honoured
+            continue
+        miss = np.abs(s - s_pick)
+        where = ""
+        if np.isfinite(miss).any() and np.nanmin(miss) <= tol:
+            ok = miss <= tol
+            near = np.flatnonzero(ok)
+            c = int(near[np.argmin(np.abs(near - a.sample))])   # the nearest crossing:
+            lo, hi = c, c                                        # its run's best sample
+            while lo > 0 and ok[lo - 1]:
+                lo -= 1
+            while hi + 1 < ok.size and ok[hi + 1]:
+                hi += 1
+            md_c = float(inp.md[lo + int(np.argmin(miss[lo:hi + 1]))])
+            where = f"; the curves place it at MD {md_c * k:.1f} {unit.suffix}"
+        else:
+            where = "; the curves do not find it in this well"
+        note = f"possible mis-pick: {a.surface} picked at MD {a.md_m * k:.1f} {unit.suffix}"
+        out.append((a.surface, a.md_m, note + where))
+    if len(out) >= 3 and len(out) > len(anchors) // 2:
+        # most picks contradicted: the curves do not correlate here, the picks are not at fault
+        note = (f"the curves honour only {len(anchors) - len(out)} of {len(anchors)} picks: "
+                "the curve alignment does not follow this well's picks (curve evidence "
+                "unreliable here, or the picks belong to another column)")
+        return [("", a.md_m, note) for a in anchors[:1]]
+    return out
+
+
+def align_well(well, column: ReferenceColumn, trajectory, *, bed_dip: BedDip | None = None,
+               settings: CurveSettings = CurveSettings(), picks=None):
+    """Align the well's curves to the type log; returns (Alignment, s of every sample [m],
+    curve names). ``s`` is NaN where the path runs off the type log. Picks anchor the
+    alignment as in :func:`find_cuts_from_curves`."""
+    bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
+    inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
+    alignment, s, _ = _align(inp, column, settings, _anchors(picks, column, inp))
     return alignment, s[inp.real], inp.names
 
 
@@ -323,17 +456,24 @@ def find_cuts_from_curves(
     with either side off the type log or on its first or last sample (the well leaves the
     strat range the type log covers there; the jump's size is unknown), nor one whose
     confidence is under ``settings.min_confidence``. Each cut's ``extra``
-    holds the engine's evidence: ``margin``, ``correlation``, ``rows_above``, ``rows_below``.
-    """
-    from .align import AlignmentEngine
+    holds the engine's evidence: ``margin``, ``correlation``, ``rows_above``, ``rows_below``,
+    and ``beyond_plausible`` (True for a cut larger than the plausible separation, which its
+    notes flag too).
 
+    With ``picks``, each picked surface of the column that the type log covers anchors the
+    alignment (``settings.pick_tolerance_m``); a pick the aligned path does not honour is
+    listed in ``CurveResult.mispicks`` with a "possible mis-pick" note. When the path honours
+    too few of them to single any out (:func:`_mispicks`), the curves do not correlate with
+    the picks: the anchors would only pull the path into detours (spurious jumps), so the
+    curves are aligned again without them and the one note stays.
+    """
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
     inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
-    engine = AlignmentEngine(inp.ref, weights=inp.weights, **settings.engine_kwargs(inp.ds))
-    alignment = engine.align(inp.x, inp.step)
-    s = inp.s0 + np.asarray(alignment.path, dtype=float) * inp.ds
-    if alignment.on_log is not None:
-        s = np.where(alignment.on_log, s, np.nan)        # off the type log: not placed
+    anchors = _anchors(picks, column, inp)
+    alignment, s, plausible = _align(inp, column, settings, anchors)
+    mis = _mispicks(anchors, s, inp, settings, well.depth_unit)
+    if mis and not mis[0][0]:          # the curves follow too few picks: anchors only detour
+        alignment, s, plausible = _align(inp, column, settings, [])
     ds, names = inp.ds, inp.names
     conf = np.asarray(alignment.confidence, dtype=float)
     track = inp.track(s, column.unit_at(s), np.where(np.isfinite(s), conf, 0.0))
@@ -354,10 +494,18 @@ def find_cuts_from_curves(
                         j_before=ends[0], j_after=ends[1], confidence=float(j.confidence),
                         method="curves",
                         note=f"curves {', '.join(names)} aligned to the type log")
+        beyond = abs(ds_m) > plausible
+        if beyond:
+            u = well.depth_unit
+            cut = dataclasses.replace(cut, notes=cut.notes + (
+                f"; jump of {abs(ds_m) / u.metres:.0f} {u.suffix} TST is beyond the plausible "
+                f"separation ({plausible / u.metres:.0f} {u.suffix}): check it against "
+                "other evidence"))
         cut.extra.update(margin=float(j.margin), correlation=float(j.correlation),
-                         rows_above=int(j.rows_above), rows_below=int(j.rows_below))
+                         rows_above=int(j.rows_above), rows_below=int(j.rows_below),
+                         beyond_plausible=bool(beyond))
         cuts.append(cut)
-    return CurveResult(cuts, track, alignment, names)
+    return CurveResult(cuts, track, alignment, names, mis, plausible)
 
 
 def find_cuts_dtw_baseline(

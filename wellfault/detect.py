@@ -8,6 +8,7 @@ command line gives them.
 
 from __future__ import annotations
 
+import dataclasses
 import warnings
 from dataclasses import dataclass
 from pathlib import Path
@@ -16,7 +17,12 @@ import numpy as np
 import pandas as pd
 
 from .column import ReferenceColumn
-from .curvecuts import CurveSettings, combine_evidence, find_cuts_from_curves
+from .curvecuts import (
+    CurveSettings,
+    combine_evidence,
+    find_cuts_from_curves,
+    plausible_separation_m,
+)
 from .dip import BedDip
 from .errors import InputError, SurveyError, WellfaultWarning, input_error
 from .measure import FaultAssumptions
@@ -35,7 +41,9 @@ class WellAnalysis:
 
     ``cuts`` is the cut table (DataFrame, caller's unit); ``records`` the same cuts as
     :class:`FaultCut` (metres); ``track`` the stratigraphic position track (``md_m, s_m, unit,
-    confidence``) when curves were aligned, else None; ``alignment`` the engine's result.
+    confidence``) when curves were aligned, else None; ``alignment`` the engine's result;
+    ``notes`` the well-level findings that are not cuts (picks the curves do not honour:
+    "possible mis-pick ...").
     """
 
     cuts: pd.DataFrame
@@ -49,6 +57,7 @@ class WellAnalysis:
     column: ReferenceColumn | None = None
     tops: pd.DataFrame | None = None
     tolerance: TopsTolerance | None = None
+    notes: list[str] = dataclasses.field(default_factory=list)
 
 
 def analyse_well(
@@ -94,7 +103,11 @@ def analyse_well(
     curves : CurveSettings, optional
         Align these curves to the column's type log (the column must carry one, e.g. built
         with ``ReferenceColumn.from_type_well``); cuts found by both tops and curves are
-        merged (``method="both"``).
+        merged (``method="both"``). With tops too, the picks anchor the alignment and the
+        tops' separations widen the default plausible separation
+        (:func:`~wellfault.curvecuts.plausible_separation_m`); a pick the curves do not
+        honour is noted ("possible mis-pick") on the tops cuts it brackets and in ``notes``,
+        with a :class:`WellfaultWarning`.
     unit : DepthUnit or str, optional
         Output length unit; default the well's own depth unit.
 
@@ -138,14 +151,36 @@ def analyse_well(
                                     well=str(well.name), assumptions=assumptions,
                                     tolerance=tolerance, expected=expected)
     track = alignment = None
+    notes: list[str] = []
     if curves is not None:
+        if curves.max_separation_m is None and column.type_log is not None:
+            curves = dataclasses.replace(curves, max_separation_m=plausible_separation_m(
+                len(column.type_log) * column.type_log_step_m, [c.delta_s_m for c in cuts]))
         res = find_cuts_from_curves(well, column, trajectory, bed_dip=bed_dip, settings=curves,
                                     assumptions=assumptions, picks=picks)
+        cuts = _note_mispicks(cuts, res.mispicks, well)
+        notes = [n for _, _, n in res.mispicks]
         cuts = combine_evidence(cuts, res.cuts)
         track, alignment = res.track, res.alignment
     frame = cuts_to_frame(cuts, unit if unit is not None else well.depth_unit)
     return WellAnalysis(frame, cuts, track, alignment, trajectory, bed_dip, assumptions, well,
-                        column, picks, tolerance)
+                        column, picks, tolerance, notes)
+
+
+def _note_mispicks(tops_cuts: list[FaultCut], mispicks, well) -> list[FaultCut]:
+    """Tops cuts with the mis-pick notes of the picks their brackets hold; one warning per
+    mis-pick (the picks a tops cut rests on may be the cut's whole evidence)."""
+    out = list(tops_cuts)
+    for surface, md, note in mispicks:
+        if not surface:                   # the curves follow none of the picks: no one pick
+            warnings.warn(f"well {well.name!r}: {note}", WellfaultWarning, stacklevel=3)
+            continue
+        warnings.warn(f"well {well.name!r}: {note}; check the pick (the curve evidence was "
+                      "aligned around it)", WellfaultWarning, stacklevel=3)
+        for k, c in enumerate(out):
+            if c.md_top_m - 1e-6 <= md <= c.md_base_m + 1e-6:
+                out[k] = dataclasses.replace(c, notes=(c.notes + "; " if c.notes else "") + note)
+    return out
 
 
 def find_fault_cuts(well, column: ReferenceColumn, **kwargs) -> pd.DataFrame:
@@ -342,11 +377,15 @@ def detect_files(
     depth_unit: str | None = None,
     output_unit: str | None = None,
     tolerance: TopsTolerance = TopsTolerance(),
+    max_separation: float | None = None,
+    pick_tolerance: float | None = None,
 ) -> WellAnalysis:
     """Read a well's files and analyse it (what ``wellfault detect`` does).
 
     Curve evidence runs when a type well is given (``curves`` defaults to GR then); tops
-    evidence when ``tops`` is given; both are combined.
+    evidence when ``tops`` is given; both are combined. ``max_separation`` (the plausible fault
+    separation, TST) and ``pick_tolerance`` (TST) are in the input depth unit
+    (:class:`~wellfault.curvecuts.CurveSettings`).
     """
     from .io import read_dip_table, read_las, read_tops
 
@@ -379,7 +418,16 @@ def detect_files(
         if col.type_log is None:
             raise InputError("--curve needs a type log: give --type-well TYPE.las and "
                              "--type-tops TYPE_TOPS.csv")
-        settings = CurveSettings.make(curves or ["GR"])
+        k = (unit_given or well.depth_unit).metres
+        extra = {}
+        if max_separation is not None:
+            extra["max_separation_m"] = float(max_separation) * k
+        if pick_tolerance is not None:
+            extra["pick_tolerance_m"] = float(pick_tolerance) * k
+        settings = CurveSettings.make(curves or ["GR"], **extra)
+    elif max_separation is not None or pick_tolerance is not None:
+        raise InputError("--max-separation and --pick-tolerance tune the curve evidence: give "
+                         "a type well too (--type-well TYPE.las --type-tops TYPE_TOPS.csv)")
     if tops_df is None and settings is None:
         raise InputError("no evidence to work on: give --tops TOPS.csv, or a type well "
                          "(--type-well TYPE.las --type-tops TYPE_TOPS.csv) for the curves")

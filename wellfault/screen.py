@@ -40,9 +40,9 @@ A checkpoint made with other settings, another manifest or other versions of the
 is not resumed.
 
 Curve evidence: the worker passes ``_Config.curves`` (curve settings for the alignment engine)
-to :func:`wellfault.detect.analyse_well` when it is set; :func:`screen_wells` accepts the
-type-well and curve arguments but does not set it yet (a warning says so): screening runs on
-tops.
+to :func:`wellfault.detect.analyse_well` when it is set. Without a given plausible separation
+(``max_separation_m``), a pass 2b derives the field's own from the cuts of pass 2
+(:func:`_field_separation`) and reads again the wells with a curve cut beyond it.
 """
 
 from __future__ import annotations
@@ -407,6 +407,36 @@ def _detect(cfg: _Config, inp: _Inputs, expected, tol, planes, precheck=True
                              unit="m").records)
 
 
+#: Least number of confident cuts (confidence >= 0.5) for the field's own separations.
+FIELD_MIN_CUTS = 5
+
+
+def _field_separation(column: ReferenceColumn, cut_out: dict) -> tuple[float, list[int]]:
+    """The field's plausible separation [m] and the wells to read again with it.
+
+    From the first reading (each well against its own default,
+    :func:`wellfault.curvecuts.plausible_separation_m`): 1.5 times the 90th percentile of
+    |Δs| over the field's cuts with confidence >= 0.5, within the floor of
+    ``plausible_separation_m`` and that default (screening only narrows the prior, with at
+    least FIELD_MIN_CUTS such cuts). The wells with a curve cut beyond 85 % of it (the prior's
+    bins, engine.py "Jump-size prior") are read again with it; the others keep their reading,
+    whose path has no reported jump the narrower prior would price.
+    """
+    from .curvecuts import SEPARATION_FLOOR_M, plausible_separation_m
+
+    tl = column.type_log
+    default = plausible_separation_m(len(tl) * column.type_log_step_m)
+    seps = [abs(float(c["delta_s_m"])) for o in cut_out.values() for c in o["c"]
+            if float(c["confidence"]) >= 0.5 and math.isfinite(float(c["delta_s_m"]))]
+    if len(seps) < FIELD_MIN_CUTS:
+        return default, []
+    d = min(default, max(SEPARATION_FLOOR_M, 1.5 * float(np.quantile(seps, 0.9))))
+    again = sorted(i for i, o in cut_out.items()
+                   if any(c["method"] in ("curves", "both")
+                          and abs(float(c["delta_s_m"])) > 0.85 * d for c in o["c"]))
+    return d, again
+
+
 #: The note tops evidence ends its own notes with (wellfault.topcuts.find_cuts_from_tops).
 _MID_NOTE = "cut placed mid-bracket: tops alone do not place it within the bracket"
 
@@ -507,6 +537,8 @@ def _run_one(cfg: _Config, kind: str, task: WellTask, extra) -> dict:
                 cuts = None
                 if kind == "remeasure" and len(extra) > 5:
                     cuts = _remeasure(cfg, inp, extra[5], planes)
+                if kind == "separation":      # the field's plausible separation (pass 2b)
+                    cfg = dataclasses.replace(cfg, curves=extra[5])
                 if cuts is None:
                     cuts = _detect(cfg, inp, expected, tol, planes, precheck)
                 out["c"] = [_cut_dict(c) for c in cuts]
@@ -770,7 +802,7 @@ class _Checkpoint:
         self.folder = out_dir / ".wells"
         self.fingerprint = fingerprint
         self.loaded: dict[str, dict[int, dict]] = {"thickness": {}, "detect": {},
-                                                   "remeasure": {}}
+                                                   "separation": {}, "remeasure": {}}
         self._files: dict = {}
         self._flushed = time.monotonic()
         run = self.folder / "run.json"
@@ -988,6 +1020,7 @@ def screen_wells(
     type_well=None,
     type_tops=None,
     curves=None,
+    max_separation_m: float | None = None,
     neighbours: bool = True,
     neighbour_k: int = 6,
     neighbour_tolerance: TopsTolerance | None = None,
@@ -1030,6 +1063,10 @@ def screen_wells(
         and its tops; ``curves`` names the curves (``["GR", "RHOB:0.5"]`` or a CurveSettings;
         default GR). Each well's curves are then aligned to the type log as well, and its
         cuts combine both kinds of evidence.
+    max_separation_m : float, optional
+        Largest plausible fault separation for the curve alignment [m TST]
+        (:class:`~wellfault.curvecuts.CurveSettings`); by default each well's from its inputs,
+        then the field's own from its first reading (pass 2b, ``info["max_separation_m"]``).
     neighbours : bool
         Two-pass screening with neighbour-aware thickness (default). False: one pass against
         the column.
@@ -1093,7 +1130,11 @@ def screen_wells(
                               else parse_depth_unit(depth_unit))
         curve_settings = curves if isinstance(curves, CurveSettings) else \
             CurveSettings.make(curves or ["GR"])
-    elif curves is not None or type_tops is not None:
+        if max_separation_m is not None:
+            curve_settings = dataclasses.replace(
+                curve_settings, max_separation_m=CurveSettings.make(
+                    ["GR"], max_separation_m=max_separation_m).max_separation_m)
+    elif curves is not None or type_tops is not None or max_separation_m is not None:
         raise InputError("curve evidence needs the type well: give --type-well TYPE.las and "
                          "--type-tops TYPE_TOPS.csv (or type_well=, type_tops=)")
     else:
@@ -1151,7 +1192,9 @@ def screen_wells(
             return
         if o["p"] == "thickness":
             intervals[i] = np.asarray(o["iv"], dtype=float).reshape(5, -1)
-        elif o["p"] == "detect":
+        elif o["p"] in ("detect", "separation"):
+            if o["p"] == "separation":
+                cut_out.pop(i, None)           # the second reading replaces the first
             checked_by[i] = o["by"]
             if "ix" in o:
                 pick_ix[i] = np.asarray(o["ix"], dtype=np.int64)
@@ -1234,6 +1277,23 @@ def screen_wells(
                        "pass 2/2 detection" if neighbours else "detection",
                        handler("detect"))
             timings["detect"] = time.perf_counter() - t0
+            # ------------------------------------------------ pass 2b: field separation
+            if cfg.curves is not None and cfg.curves.max_separation_m is None:
+                t0 = time.perf_counter()
+                d_field, again = _field_separation(col, cut_out)
+                info["max_separation_m"] = d_field
+                if again:
+                    curves2 = dataclasses.replace(cfg.curves, max_separation_m=d_field)
+                    done2b = ckpt.loaded["separation"] if ckpt is not None else {}
+                    for rec in done2b.values():
+                        if int(rec["i"]) in again and int(rec["i"]) not in errors:
+                            absorb(rec)
+                    todo2b = [tasks[i] for i in again if i not in done2b and i not in errors]
+                    runner.run("separation",
+                               ((t, extra_for(t.index) + (curves2,)) for t in todo2b),
+                               len(todo2b), "pass 2b plausible separation",
+                               handler("separation"))
+                timings["separation"] = time.perf_counter() - t0
             # ---------------------------------------------------------------- faults
             t0 = time.perf_counter()
             records, brackets, owner = _collect(cut_out)

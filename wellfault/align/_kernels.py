@@ -10,8 +10,15 @@ Moves landing at (r, j) (codes stored one byte per cell):
 * FOLLOW from (r-1, j - (Rr[r]-Rr[r-1]))
 * FAST   from (r-bf, j - (Rr[r]-Rr[r-bf]) - sig) through rows r-bf+1..r-1 at the new lag
 * SLOW   from (r-bs, j - (Rr[r]-Rr[r-bs]) + sig) likewise
-* JUMP   from the best cell of row r-1 (its column is kept per row in ``rowarg``)
+* JUMP   from any cell i of row r-1; without the prior (``jump_bin <= 0``) at cost
+  ``jump_pen`` from the best cell of row r-1 (its column is kept per row in ``rowarg``); with
+  it at cost ``jump_pen + slope_bin·max(0, |i // B − j // B| − w)`` (``B = jump_bin``, ``w =
+  jump_wbins``; engine.py, "Jump-size prior"), its source column kept per row and landing bin
+  in ``jsrc[r]``
 * START  (row 0 only)
+
+Anchors (engine.py, "Anchors"): ``anc_row`` (sorted), ``anc_lo``, ``anc_hi`` list column bands;
+on row ``anc_row[k]`` every column outside ``[anc_lo[k], anc_hi[k]]`` costs ``anc_cost`` more.
 """
 
 from __future__ import annotations
@@ -65,9 +72,55 @@ def _first_index(a, off, m, value):
 
 
 @njit(cache=True)
+def _jump_costs(F, pad, m, B, w, slope_bin, bmin, barg, out, src):
+    """Jump cost and source per column of the landing row under the binned size prior.
+
+    Columns are binned ``B`` at a time; a jump from bin q to bin q' costs
+    ``slope_bin·max(0, |q − q'| − w)`` on top of the penalty. Per source bin its best cell
+    (vectorised minimum), then the best source bin of each landing bin: a minimum over the
+    ``2w + 1`` bins around it, then a two-pass linear distance transform over the bins
+    (Felzenszwalb and Huttenlocher 2012, the L1 case). ``out[j]`` gets the cheapest source cost
+    of column j's bin, ``src[q]`` that source's column. O(m + nbins·w).
+    """
+    nb = (m + B - 1) // B
+    for q in range(nb):
+        bmin[q] = _row_min(F, pad + q * B, min(B, m - q * B))
+        barg[q] = -1                            # the bin's best column, found when used
+    hb = bmin[nb:2 * nb]
+    for q in range(nb):                         # source bins first, their columns at the end
+        best = INF
+        arg = q
+        for q2 in range(max(0, q - w), min(nb, q + w + 1)):
+            if bmin[q2] < best:
+                best = bmin[q2]
+                arg = q2
+        hb[q] = best
+        src[q] = arg
+    for q in range(1, nb):
+        v = hb[q - 1] + slope_bin
+        if v < hb[q]:
+            hb[q] = v
+            src[q] = src[q - 1]
+    for q in range(nb - 2, -1, -1):
+        v = hb[q + 1] + slope_bin
+        if v < hb[q]:
+            hb[q] = v
+            src[q] = src[q + 1]
+    for q in range(nb):
+        s0 = q * B
+        o = out[s0:min(s0 + B, m)]
+        o[:] = hb[q]
+        b = src[q]
+        if barg[b] < 0:
+            barg[b] = b * B + _first_index(F, pad + b * B, min(B, m - b * B), bmin[b])
+        src[q] = barg[b]
+
+
+@njit(cache=True)
 def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w, kind, delta,
                  null_misfit, Rr, sig, run, bf, bs, jump_pen, strain_pen, Fring, Ering, rowmin,
-                 rowarg, rowmean, codes, code_row0, off_lo, off_hi, off_cost):
+                 rowarg, rowmean, codes, code_row0, off_lo, off_hi, off_cost, jump_bin,
+                 jump_wbins, slope_bin, jsrc, anc_row, anc_lo, anc_hi, anc_cost):
     """Run the DP over rows r0..r1-1, writing codes into ``codes[r - code_row0]``.
 
     Row ``r_first`` starts the paths: at every column (``start_col < 0``) or at ``start_col``
@@ -80,7 +133,10 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
 
     Per row: the misfit pass, one pass per intermediate row of the FAST/SLOW moves, then one
     fused branch-free pass over the candidates (a disabled move reads an all-inf row), so the
-    compiler can vectorise; the jump source (best cell of the row) is kept per row.
+    compiler can vectorise; the jump source (best cell of the row) is kept per row. With the
+    jump-size prior (``jump_bin > 0``) the jump cost of every column and the source of every
+    landing bin come from :func:`_jump_costs` on the previous row (sources into ``jsrc[r]``).
+    Anchor bands (module docstring) are added to the misfit row after its mean is taken.
     """
     nb = Fring.shape[0]
     m = lo_t.shape[1]
@@ -89,6 +145,12 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
     Xf = np.empty(n)
     Xs = np.empty(n)
     none = np.full(m + 2 * pad, INF)
+    prior = jump_bin > 0 and jump_pen < INF
+    jv = np.empty(m)
+    nbin = (m + jump_bin - 1) // jump_bin if prior else 1
+    bmin = np.empty(2 * nbin)
+    barg = np.empty(nbin, np.int64)
+    ka = np.searchsorted(anc_row, r0)
     for r in range(r0, r1):
         slot = r % nb
         Er = Ering[slot]
@@ -107,6 +169,14 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
                 eo[j] = oc
             for j in range(max(c0, off_hi), c1):
                 eo[j] = oc
+        while ka < anc_row.shape[0] and anc_row[ka] < r:
+            ka += 1
+        while ka < anc_row.shape[0] and anc_row[ka] == r:
+            ea = Er[pad:pad + m]
+            for j in range(c0, c1):
+                if j < anc_lo[ka] or j > anc_hi[ka]:
+                    ea[j] += anc_cost
+            ka += 1
         fr = Fr[pad + c0:pad + c1]
         er = Er[pad + c0:pad + c1]
         if r == r_first:
@@ -133,7 +203,12 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
                 os_ = pad + c0 - (Rr[r] - Rr[r - bs]) + s
                 for t in range(r - bs + 1, r):
                     _add_shifted(Xs, Ering[t % nb], pad + c0 - (Rr[r] - Rr[t]), n)
-            jc = rowmin[r - 1] + jump_pen
+            if prior:
+                _jump_costs(Fp, pad, m, jump_bin, jump_wbins, slope_bin, bmin, barg, jv,
+                            jsrc[r])
+            else:
+                jv[:] = rowmin[r - 1]
+            jc = jv[c0:c1]
             fp = Fp[op:op + n]
             ff = Ff[of:of + n]
             fs = Fs[os_:os_ + n]
@@ -149,8 +224,9 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
                 lt = v < c
                 c = v if lt else c
                 code = np.uint8(SLOW) if lt else code
-                lt = jc < c
-                c = jc if lt else c
+                v = jc[j] + jump_pen
+                lt = v < c
+                c = v if lt else c
                 code = np.uint8(JUMP) if lt else code
                 fr[j] = c + er[j]
                 cr[j] = code
@@ -169,7 +245,8 @@ def row_geometry(meta, r0, r1, Rr, sig, run):
 
 
 @njit(cache=True)
-def traceback_block(codes, code_row0, r, j, Rr, sig, bf, bs, rowarg, path, landing, jumped):
+def traceback_block(codes, code_row0, r, j, Rr, sig, bf, bs, rowarg, path, landing, jumped,
+                    jump_bin, jsrc):
     """Follow moves back from landing cell (r, j) while r lies in this block of codes.
 
     Fills ``path`` (column per row), ``landing`` (1 where a move lands) and ``jumped`` (1 where
@@ -186,7 +263,7 @@ def traceback_block(codes, code_row0, r, j, Rr, sig, bf, bs, rowarg, path, landi
             r = r - 1
         elif code == JUMP:
             jumped[r] = 1
-            j = rowarg[r - 1]
+            j = jsrc[r, j // jump_bin] if jump_bin > 0 else rowarg[r - 1]
             r = r - 1
         else:
             b = bf if code == FAST else bs

@@ -27,8 +27,9 @@ dynamic warping (2013) — in lag ``ℓ = j − round(predicted position)``:
 * FAST   — ``bf = ceil(1/(k−1))`` rows, lag +1 in the direction of travel: ``bf+1`` reference
   samples in ``bf`` rows, a ratio ``(bf+1)/bf <= k``;
 * SLOW   — ``bs = ceil(k/(k−1))`` rows, lag −1: ``(bs−1)/bs >= 1/k``;
-* JUMP   — one row, to *any* reference sample, forward or backward, cost ``jump_penalty``;
-  it comes from the best cell of the previous row, so its source is one integer per row.
+* JUMP   — one row, to *any* reference sample, forward or backward, cost ``jump_penalty``
+  (plus the jump-size prior's excess, below); without the prior it comes from the best cell
+  of the previous row, so its source is one integer per row.
 
 For the default ``k = 1.5``: ``bf = 2``, ``bs = 3``, local slopes 3/2, 1 and 2/3 — the stretch
 window holds on every move and over any run of moves; the price is that a lag change is
@@ -45,10 +46,11 @@ Nothing lets the path stall for free: not moving when a move is predicted needs 
 Exactness and cost
 ------------------
 The DP is exact: the global minimum over all such paths, with free start and end in the
-reference (checked against exhaustive enumeration in tests/test_align_engine.py). Time
-O(R·M) with O(1) work per cell in a branch-free, vectorised row pass; memory: one byte per
-(row, reference sample) for the move codes, plus O(M) cost rows and O(R + N) per-row/sample
-arrays. ``R`` = total predicted strat arc length in reference samples: ``R <= N`` while
+reference (checked against exhaustive enumeration in tests/test_align_engine.py, with the
+jump-size prior and anchors too). Time O(R·M) with O(1) work per cell in a branch-free,
+vectorised row pass; memory: one byte per (row, reference sample) for the move codes, plus
+O(M) cost rows, O(R + N) per-row/sample arrays and, with the prior, one source per row and
+prior bin. ``R`` = total predicted strat arc length in reference samples: ``R <= N`` while
 ``|step| <= 1``; ``R ≈ N·|step|`` in high-angle wells. The forward pass runs one row at a time
 (:class:`~wellfault.align.stream.StreamingAligner`); :meth:`AlignmentEngine.align` is one push.
 
@@ -63,6 +65,51 @@ well's own median and spread (as before) left the level wrong by half a spread o
 of wells on real gamma-ray type logs, and a path over wrongly standardised curves hops between
 chance matches (jumps of ±1000 m, tens per well). With it the level is right to 0.02 spread
 (90th percentile, 120 wells on the three real logs of benchmarks/bench_curves.py).
+
+Jump-size prior
+---------------
+With a constant jump cost, a type log with little character lets the path hop to a look-alike
+interval anywhere in the column (jumps of 1-2 km of TST where the field's faults have tens of
+metres). With ``jump_free = D`` a jump's cost grows with its size beyond D: columns are grouped
+in bins of ``B = ceil(D / jump_bins)`` reference samples, ``w = ceil(D / B)`` bins are free, and
+a jump from column i to column j costs ``jump_penalty + jump_slope·B·max(0, |i//B − j//B| − w)``
+— free up to D (give or take a bin), then ``jump_slope`` per sample (by default
+``PRIOR_EXCESS·jump_penalty/D`` = ``jump_penalty/D``: a jump of k·D costs k plain jumps). A
+steeper slope buys nothing: a staircase of k jumps of D each, one row apart, costs k jumps
+and a few rows of misfit, so the path would split an implausible jump into a staircase of
+plausible-looking ones (several false cuts instead of one flagged cut); with this slope the
+single jump is never dearer than its staircase.
+The size is the reference displacement between the two rows (Δs plus the predicted one-sample
+move). The DP stays exact for this cost (oracle-tested): per row, the best cell of every bin
+of the previous row (one vectorised minimum over the row), the best source bin of every
+landing bin (a minimum over the ``2w + 1`` bins around it, then a two-pass linear distance
+transform over the bins with slope ``jump_slope·B``), and the jump cost written per column
+— O(M + (M/B)·w) per row; the source column of each landing bin is kept per row (``R·M/B``
+int64, an eighth of a byte per cell for B = 64), so the traceback recovers every jump's
+source without storing one per cell. Why bins: the per-column prior (windowed minimum of half-
+width D, then a linear distance transform, also O(M) per row and exact) was built first and
+measured 3-6 times the whole DP's time, its four sequential scans per row do not vectorise;
+a prior is a soft preference, and a resolution of D/8 in its size costs it nothing.
+``jump_free = None`` (the default of this array-level class) keeps the constant cost. The
+calibration pre-pass (:meth:`AlignmentEngine.calibrate`) runs without the prior: with it, the
+coarse path of some high-angle wells on real logs ran off the type log and left the well's
+level wrong (three real cuts lost in 60 test wells), though it gave fewer absurd jumps on
+low-character logs.
+
+Anchors
+-------
+Picked tops, when given with the curves, constrain the path: an anchor ``(sample, position,
+tolerance)`` says that well sample ``sample`` lies at reference position ``position`` within
+``tolerance`` samples. On the anchor's row every column whose position for that sample
+(``sample_position + column − row centre``) is farther than the tolerance costs
+``anchor_cost`` more (default ``ANCHOR_COST_JUMPS·jump_penalty`` = 1.5 jumps), on every move
+through that row. The cost is finite on purpose: where the curves are ambiguous the pick
+decides (any path honouring it is cheaper by the anchor cost), but a pick the curves clearly
+contradict over many rows is not forced — the path then pays the cost, and the well-level
+wiring reports the pick as a possible mis-pick instead of bending the alignment into an
+absurd detour; less than two jumps, so a detour out and back just to touch a wrong pick never
+pays. Anchor costs are in the DP (oracle-tested) and in the cut evidence's window DPs, not in
+the local fit quality.
 
 Off the type log
 ----------------
@@ -93,7 +140,7 @@ two jump-free DPs (forward from the path's cell at the window start, backward fr
 near its cell at the window end) give the best cost with one jump landing on each row of the
 window — ``bracket``: the rows where it costs at most ``bracket_tolerance`` more than the best —
 and the best cost with no jump in the window. ``margin`` = no-jump cost − best one-jump cost
-(the jump penalty included): the evidence that a cut, not stretch, explains the window.
+(the jump's own cost included: penalty and any prior excess; anchors cost in both): the evidence that a cut, not stretch, explains the window.
 ``correlation`` is the smaller of the well/type-log correlations along the path above and
 below the cut over the same window; ``run`` (:attr:`Jump.rows_above`, :attr:`Jump.rows_below`,
 the smaller) how many rows the well keeps following the type log without another jump.
@@ -153,13 +200,20 @@ from .misfit import check_misfit, reference_bounds, robust_location_scale
 from .stream import StreamingAligner, _as_curves
 
 __all__ = ["AlignmentEngine", "StreamingAligner", "Alignment", "Jump", "stretch_moves",
-           "running_standardise", "CONFIDENCE_COEF"]
+           "running_standardise", "CONFIDENCE_COEF", "PRIOR_EXCESS", "ANCHOR_COST_JUMPS"]
 
 #: Coefficients of the calibrated cut confidence (module docstring, "Cut evidence"): the
 #: logistic model P(real) = 1 / (1 + exp(-b . [1, ln(1 + margin), correlation, ln(run)])),
 #: fitted by benchmarks/calibrate_confidence.py (default arguments) on 380 forward-modelled
 #: wells (seeds 10000+, type logs on a 0.1524 m grid): 481 cuts, 318 real.
 CONFIDENCE_COEF: tuple[float, float, float, float] = (-15.75, -0.1323, 14.59, 1.094)
+
+#: Default slope of the jump-size prior: a jump twice the plausible size costs
+#: ``1 + PRIOR_EXCESS`` plain jumps (module docstring, "Jump-size prior").
+PRIOR_EXCESS = 1.0
+#: Default cost of a row outside its anchor's band, in plain jumps (module docstring,
+#: "Anchors").
+ANCHOR_COST_JUMPS = 1.5
 
 
 def stretch_moves(stretch: float) -> tuple[int, int]:
@@ -289,6 +343,15 @@ class AlignmentEngine:
         docstring); None = the uncalibrated form with ``confidence_scale``,
         ``confidence_offset`` (margin shift) and the correlation ramp.
     confidence_offset : float — margin shift of the uncalibrated form.
+    jump_free : int or None — plausible jump size [reference samples]: a larger jump costs
+        ``jump_slope`` per sample beyond it on top of ``jump_penalty`` (module docstring,
+        "Jump-size prior"); None = every jump costs the same (no prior).
+    jump_slope : float or None — cost per reference sample beyond ``jump_free`` (inf forbids
+        larger jumps); None = ``PRIOR_EXCESS·jump_penalty/jump_free``.
+    jump_bins : int — the prior measures sizes in bins of ``ceil(jump_free/jump_bins)``
+        reference samples (module docstring, "Jump-size prior").
+    anchor_cost : float or None — cost of a row outside its anchor's band (module docstring,
+        "Anchors"); None = ``ANCHOR_COST_JUMPS·jump_penalty``.
     """
 
     def __init__(
@@ -318,6 +381,10 @@ class AlignmentEngine:
         calibrate_window: int = 60,
         confidence_offset: float = 0.0,
         confidence_coef: tuple[float, float, float, float] | None = CONFIDENCE_COEF,
+        jump_free: int | None = None,
+        jump_slope: float | None = None,
+        jump_bins: int = 8,
+        anchor_cost: float | None = None,
     ) -> None:
         self.ref = ref
         self.weights = weights
@@ -343,6 +410,10 @@ class AlignmentEngine:
         self.calibrate_window = calibrate_window
         self.confidence_offset = confidence_offset
         self.confidence_coef = confidence_coef
+        self.jump_free = jump_free
+        self.jump_slope = jump_slope
+        self.jump_bins = jump_bins
+        self.anchor_cost = anchor_cost
         self._check()
 
     # -- set-up -------------------------------------------------------------------------------
@@ -387,7 +458,53 @@ class AlignmentEngine:
                 raise input_error("confidence_coef must be 4 finite numbers",
                                   value=self.confidence_coef,
                                   fix="pass None, or CONFIDENCE_COEF (wellfault.align)")
+        if self.jump_free is not None and not (int(self.jump_free) == self.jump_free
+                                               and int(self.jump_free) >= 0):
+            raise input_error("jump_free must be a whole number of reference samples >= 0",
+                              value=self.jump_free,
+                              fix="use None (no jump-size prior) or e.g. 1300 (200 m at 0.15 m)")
+        if not (int(self.jump_bins) == self.jump_bins and int(self.jump_bins) >= 1):
+            raise input_error("jump_bins must be a whole number >= 1", value=self.jump_bins,
+                              fix="use e.g. 8")
+        for name in ("jump_slope", "anchor_cost"):
+            v = getattr(self, name)
+            if v is not None and not float(v) >= 0:
+                raise input_error(f"{name} must be >= 0 (or None for the default)", value=v)
         check_misfit(self.misfit)
+
+    # -- jump-size prior and anchors -----------------------------------------------------------
+    def prior_slope(self) -> float:
+        """Cost per reference sample of a jump's size beyond ``jump_free`` (module docstring,
+        "Jump-size prior"): ``jump_slope``, by default ``PRIOR_EXCESS·jump_penalty/jump_free``."""
+        if self.jump_slope is not None:
+            return float(self.jump_slope)
+        return PRIOR_EXCESS * float(self.jump_penalty) / max(int(self.jump_free or 0), 1)
+
+    def prior_bins(self) -> tuple[int, int]:
+        """(B, w): the prior's bin width [reference samples] and free bins (module docstring,
+        "Jump-size prior"); (0, 0) without the prior."""
+        if self.jump_free is None:
+            return 0, 0
+        d = int(self.jump_free)
+        b = max(1, math.ceil(d / int(self.jump_bins)))
+        return b, math.ceil(d / b)
+
+    def jump_cost(self, i: int, j: int) -> float:
+        """Cost of a jump from DP column ``i`` of a row to column ``j`` of the next one
+        (``jump_penalty`` plus the prior's excess)."""
+        pen = float(self.jump_penalty)
+        b, w = self.prior_bins()
+        if b == 0:
+            return pen
+        excess = max(abs(int(j) // b - int(i) // b) - w, 0)
+        return pen + self.prior_slope() * b * excess if excess > 0 else pen
+
+    def anchor_penalty(self) -> float:
+        """Cost of a row placed outside its anchor's band: ``anchor_cost``, by default
+        ``ANCHOR_COST_JUMPS·jump_penalty`` (module docstring, "Anchors")."""
+        if self.anchor_cost is not None:
+            return float(self.anchor_cost)
+        return ANCHOR_COST_JUMPS * float(self.jump_penalty)
 
     def _prepared(self) -> dict:
         if getattr(self, "prep_", None) is None:
@@ -419,27 +536,32 @@ class AlignmentEngine:
                 w=np.ascontiguousarray(w),
                 kind=check_misfit(self.misfit), bf=bf, bs=bs, pad=bs + 2, nb=bs + 1,
                 ref_center=c, ref_scale=s, n_curves=r.shape[1],
+                jump_bin=self.prior_bins()[0], jump_wbins=self.prior_bins()[1],
+                slope_bin=self.prior_slope() * self.prior_bins()[0]
+                if self.jump_free is not None else 0.0,
+                anchor_cost=self.anchor_penalty(),
             )
         return self.prep_
 
     # -- public -------------------------------------------------------------------------------
-    def stream(self, *, center: np.ndarray | None = None,
-               scale: np.ndarray | None = None) -> StreamingAligner:
+    def stream(self, *, center: np.ndarray | None = None, scale: np.ndarray | None = None,
+               anchors=None) -> StreamingAligner:
         """A streaming aligner for a well being drilled (``push`` samples, read ``current``).
 
         ``center``/``scale`` (C,) standardise the well's curves; while drilling the well's own
         statistics are unknown, so by default the type log's raw median and spread are used
         (tools assumed calibrated alike) — pass values from an offset well or from the first
-        part of the hole when that does not hold.
+        part of the hole when that does not hold. ``anchors`` as for :meth:`align` (sample
+        numbers count from the first sample pushed).
         """
         p = self._prepared()
         if center is None or scale is None:
             center = p["ref_center"] if center is None else center
             scale = p["ref_scale"] if scale is None else scale
-        return StreamingAligner(self, center, scale)
+        return StreamingAligner(self, center, scale, anchors)
 
     def align(self, well: np.ndarray, step: np.ndarray, *, center: np.ndarray | None = None,
-              scale: np.ndarray | None = None) -> Alignment:
+              scale: np.ndarray | None = None, anchors=None) -> Alignment:
         """Align a whole well: the optimal path, its jumps and their evidence.
 
         Parameters
@@ -450,6 +572,10 @@ class AlignmentEngine:
         center, scale : (C,) optional — well standardisation; by default from
             :meth:`calibrate` (the well's quantiles matched to those of the type-log samples it
             covers), or the well's own median and spread when ``calibrate_passes == 0``.
+        anchors : (K, 3) array_like, optional — picked surfaces as constraints (module
+            docstring, "Anchors"): per row ``(sample, position, tolerance)``, the well sample
+            at the surface, the surface's reference position and the tolerance [reference
+            samples].
         """
         p = self._prepared()
         x = _as_curves(well, p["n_curves"], "well")
@@ -463,10 +589,10 @@ class AlignmentEngine:
                 robust_location_scale(x)
             center = c0 if center is None else center
             scale = s0 if scale is None else scale
-        return self._align(x, s, center, scale, evidence=True)
+        return self._align(x, s, center, scale, evidence=True, anchors=anchors)
 
-    def _align(self, x, s, center, scale, evidence: bool) -> Alignment:
-        aligner = StreamingAligner(self, center, scale)
+    def _align(self, x, s, center, scale, evidence: bool, anchors=None) -> Alignment:
+        aligner = StreamingAligner(self, center, scale, anchors)
         aligner.push(x, s)
         return aligner._result(evidence)
 

@@ -28,7 +28,8 @@ def _traceback(al, nrows: int, blocks: list) -> tuple[np.ndarray, np.ndarray, np
             break
         if row0 <= r < row0 + blk.shape[0]:
             r, j = K.traceback_block(blk, row0, r, j, al._Rr.a, al._sig.a, p["bf"], p["bs"],
-                                     al._rowarg.a, path, landing, jumped)
+                                     al._rowarg.a, path, landing, jumped, p["jump_bin"],
+                                     al._jsrc.a)
     return path, landing, jumped
 
 
@@ -135,12 +136,16 @@ def _landing_at_or_before(landing: np.ndarray, hi: int, lo: int) -> int:
     return lo
 
 
+_NO_SOURCES = np.zeros((1, 1), np.int64)
+
+
 def _window_dp(al, rows: np.ndarray, Rr: np.ndarray, sig: np.ndarray, start_col: int,
-               centre: int, free: bool) -> np.ndarray:
+               centre: int, free: bool, anchors) -> np.ndarray:
     """Row minima of the jump-free DP over the given window rows (engine kernel, no jumps).
 
     Paths start on the first row at ``start_col`` (or, when ``free``, at any column within
     reach of it); only the columns within reach (two per row either way) are computed.
+    ``anchors`` (rows of the window, first and last column) cost as in the engine.
     """
     p, e = al._p, al.engine
     n = rows.shape[0]
@@ -160,7 +165,7 @@ def _window_dp(al, rows: np.ndarray, Rr: np.ndarray, sig: np.ndarray, start_col:
                    p["ref_nan"], p["w"], p["kind"], float(e.huber_delta), float(e.null_misfit),
                    Rr, sig, run, p["bf"], p["bs"], math.inf, float(e.strain_penalty), F, E,
                    rowmin, rowarg, rowmean, codes, 0, p["off"], p["off"] + p["m_ref"],
-                   p["off_cost"])
+                   p["off_cost"], 0, 0, 0.0, _NO_SOURCES, *anchors, p["anchor_cost"])
     return rowmin
 
 
@@ -171,8 +176,9 @@ def _jump_evidence(al, r: int, a: int, z: int, path: np.ndarray,
     Paths start at the optimal path's cell of row a (anywhere near it if ``free_start``: the
     well's first block) and end anywhere near its cell of row z (after z the next jump, or the
     end of the window, frees the end). cost[k] = best such path with one jump, landing at row
-    a + k (forward jump-free DP to row a + k - 1, jump, backward jump-free DP from row a + k);
-    the alternative is the best such path with no jump at all. The backward DP is the engine's
+    a + k (forward jump-free DP to row a + k - 1, jump, backward jump-free DP from row a + k),
+    the jump costing what the path's own jump costs (penalty and prior excess for its size);
+    the alternative is the best such path with no jump at all. Anchors cost as in the engine. The backward DP is the engine's
     forward kernel run on the reversed rows, whose multi-row moves put the lag change at the
     other end of the move: same stretch limits, a slightly different path family.
     """
@@ -180,11 +186,14 @@ def _jump_evidence(al, r: int, a: int, z: int, path: np.ndarray,
     sl = slice(a, z + 1)
     rows = al._rows.a[sl]
     Rr, sig = al._Rr.a[sl], al._sig.a[sl]
-    fmin = _window_dp(al, rows, Rr, sig, int(path[a]), int(path[a]), free_start)
+    arow, alo, ahi = al.anchor_bands(a, z + 1)
+    fmin = _window_dp(al, rows, Rr, sig, int(path[a]), int(path[a]), free_start,
+                      (arow - a, alo, ahi))
     bmin = _window_dp(al, np.ascontiguousarray(rows[::-1]), np.ascontiguousarray(Rr[::-1]),
-                      np.ascontiguousarray(-sig[::-1]), int(path[z]), int(path[z]), True)[::-1]
+                      np.ascontiguousarray(-sig[::-1]), int(path[z]), int(path[z]), True,
+                      ((z - arow)[::-1].copy(), alo[::-1].copy(), ahi[::-1].copy()))[::-1]
     cost = np.full(z - a + 1, np.inf)
-    cost[1:] = fmin[:-1] + float(e.jump_penalty) + bmin[1:]
+    cost[1:] = fmin[:-1] + e.jump_cost(path[r - 1], path[r]) + bmin[1:]
     best = float(cost.min())
     alt = float(fmin[-1])
     margin = alt - best if np.isfinite(alt) else math.inf

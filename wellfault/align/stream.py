@@ -54,6 +54,21 @@ class TailAlignment:
     alignment: Alignment
 
 
+def _as_anchors(anchors) -> np.ndarray:
+    """Anchors as a (K, 3) float array sorted by sample (engine.py, "Anchors")."""
+    if anchors is None:
+        return np.zeros((0, 3))
+    a = np.asarray(anchors, dtype=float).reshape(-1, 3) if np.size(anchors) else np.zeros((0, 3))
+    if not np.all(np.isfinite(a)) or np.any(a[:, 0] < 0) or np.any(a[:, 2] < 0):
+        raise input_error("anchors must be finite rows (sample >= 0, position, tolerance >= 0)",
+                          value=a.tolist()[:3], fix="pass (K, 3) rows: well sample, reference "
+                          "position and tolerance [reference samples]")
+    return a[np.argsort(a[:, 0], kind="stable")]
+
+
+_NO_ANCHORS = (np.zeros(0, np.int64), np.zeros(0, np.int64), np.zeros(0, np.int64))
+
+
 class _Arr:
     __slots__ = ("a",)
 
@@ -69,11 +84,16 @@ class _TailView:
         self.engine, self._p, self.center, self.scale = al.engine, al._p, al.center, al.scale
         self.n_samples = i_hi - i_lo
         for name in ("_meta", "_rows", "_Rr", "_sig", "_run", "_rowmin", "_rowarg",
-                     "_rowmean"):
+                     "_rowmean", "_jsrc"):
             setattr(self, name, _Arr(getattr(al, name).a[lo:n]))
         self._srow = _Arr(al._srow.a[i_lo:i_hi] - lo)
         self._spos = _Arr(al._spos.a[i_lo:i_hi])
         self._z = _Arr(al._z.a[i_lo:i_hi])
+        self._al, self._lo = al, lo
+
+    def anchor_bands(self, r0: int, r1: int):
+        rows, lo, hi = self._al.anchor_bands(self._lo + r0, self._lo + r1)
+        return rows - self._lo, lo, hi
 
 
 class StreamingAligner:
@@ -85,7 +105,7 @@ class StreamingAligner:
     give identical results.
     """
 
-    def __init__(self, engine: AlignmentEngine, center, scale) -> None:
+    def __init__(self, engine: AlignmentEngine, center, scale, anchors=None) -> None:
         self.engine = engine
         p = engine._prepared()
         self._p = p
@@ -96,6 +116,7 @@ class StreamingAligner:
             np.asarray(scale, float), (nc,)).copy()
         if np.any(~(self.scale > 0)):
             raise input_error("scale must be positive", value=self.scale.tolist())
+        self._anchors = _as_anchors(anchors)
         m = p["lo_t"].shape[1]                # DP columns: the type log and its off-log margins
         width = m + 2 * p["pad"]
         self._F = np.full((p["nb"], width), np.inf)
@@ -112,6 +133,8 @@ class StreamingAligner:
         self._rowmin = _Grow((), float)
         self._rowarg = _Grow((), np.int64)
         self._rowmean = _Grow((), float)
+        b = p["jump_bin"]
+        self._jsrc = _Grow(((m + b - 1) // b if b > 0 else 1,), np.int64)   # jump sources
         self._block_rows = int(np.clip(2**22 // m, 16, 4096))
         self._blocks: list[np.ndarray] = []
         self._tpath = _Grow((), np.int64)    # traceback of the tail (tail())
@@ -149,6 +172,25 @@ class StreamingAligner:
         self._advance(r0, r1)
         self.n_rows = r1
 
+    def anchor_bands(self, r0: int, r1: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """(row, first, last column) of the anchors on rows r0..r1-1 of samples pushed so far,
+        sorted by row: the DP columns whose position is within the anchor's tolerance."""
+        a = self._anchors
+        if a.shape[0] == 0:
+            return _NO_ANCHORS
+        a = a[a[:, 0] < self.n_samples]
+        i = np.rint(a[:, 0]).astype(np.int64)
+        rows = self._srow.a[i]
+        sel = (rows >= r0) & (rows < r1)
+        if not sel.any():
+            return _NO_ANCHORS
+        i, rows, a = i[sel], rows[sel], a[sel]
+        shift = self._meta.a[rows, 2] - self._spos.a[i] + self._p["off"]   # position -> column
+        lo = np.ceil(a[:, 1] - a[:, 2] + shift - 1e-9).astype(np.int64)
+        hi = np.floor(a[:, 1] + a[:, 2] + shift + 1e-9).astype(np.int64)
+        order = np.argsort(rows, kind="stable")
+        return rows[order], lo[order], hi[order]
+
     def _row_geometry(self, r0: int, r1: int) -> None:
         K.row_geometry(self._meta.a, r0, r1, self._Rr.ensure(r1), self._sig.ensure(r1),
                        self._run.ensure(r1))
@@ -158,9 +200,10 @@ class StreamingAligner:
         if r1 <= r0:
             return
         self._row_geometry(r0, r1)
-        for buf in (self._rowmin, self._rowarg, self._rowmean):
+        for buf in (self._rowmin, self._rowarg, self._rowmean, self._jsrc):
             buf.ensure(r1)
         p, e = self._p, self.engine
+        arow, alo, ahi = self.anchor_bands(r0, r1)
         r = r0
         while r < r1:
             if codes_out is None:
@@ -180,7 +223,9 @@ class StreamingAligner:
                            self._run.a, p["bf"], p["bs"], float(e.jump_penalty),
                            float(e.strain_penalty), self._F, self._E, self._rowmin.a,
                            self._rowarg.a, self._rowmean.a, blk, row0, p["off"],
-                           p["off"] + p["m_ref"], p["off_cost"])
+                           p["off"] + p["m_ref"], p["off_cost"], p["jump_bin"],
+                           p["jump_wbins"], p["slope_bin"], self._jsrc.a, arow, alo, ahi,
+                           p["anchor_cost"])
             r = rend
 
     # -- state ---------------------------------------------------------------------------------
@@ -233,7 +278,7 @@ class StreamingAligner:
             k0 = max(0, stop - b * B)
             r, j = K.traceback_block(self._blocks[b][k0:], b * B + k0, r, j, self._Rr.a,
                                      self._sig.a, p["bf"], p["bs"], self._rowarg.a, path,
-                                     landing, jumped)
+                                     landing, jumped, p["jump_bin"], self._jsrc.a)
             if r < 0:
                 break
         # start on a landing cell entered by FOLLOW (or the path's START): a traceback from the
