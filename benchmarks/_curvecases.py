@@ -83,6 +83,8 @@ def run_case(case, methods=("engine",), settings=None):
                 "confidence": [c.confidence for c in res.cuts], "real": False,
                 "margin": [c.extra.get("margin", np.nan) for c in res.cuts],
                 "correlation": [c.extra.get("correlation", np.nan) for c in res.cuts]})
+        det["character"] = [c.extra.get("character", np.nan) for c in res.cuts]
+        det["delta_s_m"] = [c.delta_s_m for c in res.cuts]
         for t in (rows, det):
             if len(t):
                 t["case"], t["log"], t["seed"], t["kind"] = label, src, seed, sc.kind

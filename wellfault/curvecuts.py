@@ -125,6 +125,7 @@ class CurveResult:
     track: pd.DataFrame
     alignment: object  # wellfault.align.Alignment
     curves: tuple[str, ...]
+    weak: list[str] = dataclasses.field(default_factory=list)  # "curve evidence weak ..." notes
 
 
 def gap_fillers(md_above: float, md_below: float, nominal_m: float, gap_m: float
@@ -326,6 +327,7 @@ def find_cuts_from_curves(
     holds the engine's evidence: ``margin``, ``correlation``, ``rows_above``, ``rows_below``.
     """
     from .align import AlignmentEngine
+    from .align.character import CharacterMap, weigh_confidence
 
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
     inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
@@ -337,6 +339,7 @@ def find_cuts_from_curves(
     ds, names = inp.ds, inp.names
     conf = np.asarray(alignment.confidence, dtype=float)
     track = inp.track(s, column.unit_at(s), np.where(np.isfinite(s), conf, 0.0))
+    cmap = CharacterMap.from_type_log(inp.ref, inp.s0, ds, weights=inp.weights)
     end = len(column.type_log) - 1
     cuts: list[FaultCut] = []
     for j in alignment.jumps:
@@ -346,18 +349,50 @@ def find_cuts_from_curves(
         ends = (float(j.j_before), float(j.j_after))
         if getattr(j, "off_log", False) or not all(0.5 <= v <= end - 0.5 for v in ends):
             continue
-        if not float(j.confidence) >= settings.min_confidence:
+        kappa = float(np.min(cmap.at(inp.s0 + np.asarray(ends) * ds)))
+        confidence = weigh_confidence(float(j.confidence), kappa)
+        if not confidence >= settings.min_confidence:
             continue
         first, last = (int(v) for v in j.bracket)
         cut = _measured(well, column, trajectory, bed_dip, assumptions, picks, inp,
                         sample=int(j.sample), first=first, last=last, delta_s_m=ds_m,
-                        j_before=ends[0], j_after=ends[1], confidence=float(j.confidence),
+                        j_before=ends[0], j_after=ends[1], confidence=confidence,
                         method="curves",
                         note=f"curves {', '.join(names)} aligned to the type log")
         cut.extra.update(margin=float(j.margin), correlation=float(j.correlation),
-                         rows_above=int(j.rows_above), rows_below=int(j.rows_below))
+                         rows_above=int(j.rows_above), rows_below=int(j.rows_below),
+                         character=kappa, engine_confidence=float(j.confidence))
         cuts.append(cut)
-    return CurveResult(cuts, track, alignment, names)
+    cuts, weak = _character_notes(cuts, cmap, track, column, well.depth_unit)
+    return CurveResult(cuts, track, alignment, names, weak)
+
+
+def _character_notes(cuts: list[FaultCut], cmap, track: pd.DataFrame, column, unit
+                     ) -> tuple[list[FaultCut], list[str]]:
+    """Say where the curve evidence is weak (:mod:`wellfault.align.character`): one note per
+    MD span of the well placed where the type log cannot tell positions apart, added to the
+    cuts inside it; a cut with either side on such a position says its confidence was
+    lowered."""
+    from .align.character import WEAK_BELOW
+
+    spans = cmap.weak_spans(track["md_m"].to_numpy(float), track["s_m"].to_numpy(float))
+    notes = []
+    for md_top, md_base, s_a, s_b in spans:
+        units = column.unit_at(np.array([s_a, s_b]))
+        notes.append(cmap.note(md_top, md_base, unit.suffix, unit.metres,
+                               (str(units[0] or ""), str(units[1] or ""))))
+    out = []
+    for c in cuts:
+        add = [n for n, (a, b, _, _) in zip(notes, spans) if a - 1.0 <= c.md_m <= b + 1.0]
+        k = c.extra.get("character", np.inf)
+        if k < WEAK_BELOW:
+            add.append(f"type log without character at this cut (character {k:.2f} < "
+                       f"{WEAK_BELOW:g}): confidence lowered from "
+                       f"{c.extra.get('engine_confidence', np.nan):.2f}")
+        if add:
+            c = dataclasses.replace(c, notes="; ".join([c.notes, *add]))
+        out.append(c)
+    return out, notes
 
 
 def find_cuts_dtw_baseline(
