@@ -61,7 +61,9 @@ def _add_detect(sub):
                    help="the type well's survey (vertical when omitted)")
     p.add_argument("--curve", action="append", metavar="NAME[:WEIGHT]",
                    help="curve to align (repeatable, optional weight, e.g. --curve GR:2 "
-                        "--curve RHOB); default GR when a type well is given")
+                        "--curve RHOB); default: every curve family (gamma ray, resistivity, "
+                        "density, neutron, sonic) the well and the type well share, each "
+                        "weighted by the type log's character in it")
     p.add_argument("--depth-unit", choices=["m", "ft", "usft"],
                    help="depth unit of input files that do not state one")
     p.add_argument("--output-unit", choices=["m", "ft"],

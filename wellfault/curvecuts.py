@@ -30,7 +30,7 @@ from .results import FaultCut
 
 __all__ = ["CurveSettings", "CurveResult", "align_well", "find_cuts_from_curves",
            "find_cuts_dtw_baseline", "find_cuts_lag_screen", "combine_evidence",
-           "predicted_steps", "parse_curve_spec"]
+           "predicted_steps", "parse_curve_spec", "shared_curves", "CURVE_FAMILIES"]
 
 
 @dataclass(frozen=True)
@@ -57,6 +57,12 @@ class CurveSettings:
       alignment for a strat increment of the whole gap in one row, and unlogged rock cannot
       be placed). ``inf`` turns it off. ``wellfault watch`` bridges gaps the same way.
 
+    ``shared`` (what ``make()`` without curves gives, and the commands' default): align every
+    curve family the well and the type log share — gamma ray, resistivity, density, neutron,
+    sonic (:data:`CURVE_FAMILIES`) — each weighted by the type log's character in it
+    (:func:`shared_curves`); ``curves`` then only says what to use when they share none of
+    them. Curves named with ``--curve`` (``make(curves=[...])``) are used as given.
+
     ``min_confidence`` is the least calibrated confidence of a reported cut (default 0.01: a
     jump the evidence gives under 1 % of being real — in practice a well that does not
     correlate with the type log there, e.g. rock the type log does not cover — is left in
@@ -70,6 +76,7 @@ class CurveSettings:
     calibrate_window_m: float = 9.0
     min_confidence: float = 0.01
     gap_m: float = 2.0
+    shared: bool = False
 
     @classmethod
     def make(cls, curves=None, *, min_jump_m: float = 2.0, off_log_m: float = 150.0,
@@ -87,7 +94,8 @@ class CurveSettings:
         if not float(gap_m) > 0:
             raise InputError(f"gap_m must be a positive length in metres (got {gap_m!r})")
         return cls(spec, float(min_jump_m), tuple(sorted(engine.items())), float(off_log_m),
-                   float(calibrate_window_m), float(min_confidence), float(gap_m))
+                   float(calibrate_window_m), float(min_confidence), float(gap_m),
+                   shared=curves is None)
 
     def engine_kwargs(self, ds_m: float) -> dict:
         """Keyword arguments for the engine on a type log of step ``ds_m``."""
@@ -189,12 +197,76 @@ def predicted_steps(md_m: np.ndarray, trajectory, bed_dip: BedDip, picks=None) -
     return out
 
 
+#: Curve families aligned by default when the well and the type log share them, each with the
+#: mnemonics recognised (first match wins; case-insensitive) and whether it is correlated on a
+#: log scale (resistivity spans decades and is read on a logarithmic scale, common practice).
+CURVE_FAMILIES: dict[str, tuple[tuple[str, ...], bool]] = {
+    "gamma ray": (("GR", "GRC", "SGR", "CGR", "GRD", "GAM"), False),
+    "resistivity": (("RT", "RT90", "ILD", "LLD", "RLA5", "RDEP", "RD", "RILD", "RES", "ILM",
+                     "LLS"), True),
+    "density": (("RHOB", "RHOZ", "DEN", "ZDEN"), False),
+    "neutron": (("NPHI", "TNPH", "NPOR", "PHIN", "CNC"), False),
+    "sonic": (("DT", "DTC", "DTCO", "AC"), False),
+}
+_MIN_COVER = 0.5      # a shared curve is used where at least half its samples are valid
+_MIN_WEIGHT = 0.1     # ... and its character is at least this fraction of the best curve's
+
+
+def _log_scale(v: np.ndarray) -> np.ndarray:
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(v > 0, np.log10(np.where(v > 0, v, 1.0)), np.nan)
+
+
+def shared_curves(well_curves: pd.DataFrame, type_log: pd.DataFrame, ds_m: float
+                  ) -> list[tuple[str, str, bool, float]]:
+    """The curve families of :data:`CURVE_FAMILIES` both logs carry, as (well mnemonic,
+    type-log mnemonic, log scale, weight).
+
+    A family is used when each log has a mnemonic of it with at least half its samples valid;
+    its weight is the type log's median character in it (:mod:`wellfault.align.character`)
+    over the best family's, and a family under a tenth of the best is left out (it would add
+    noise, not evidence).
+    """
+    from .align.character import curve_character
+
+    wl = {c.upper(): c for c in well_curves.columns}
+    rl = {c.upper(): c for c in type_log.columns}
+    found = []
+    for aliases, log_scale in CURVE_FAMILIES.values():
+        w = next((wl[a] for a in aliases if a in wl), None)
+        r = next((rl[a] for a in aliases if a in rl), None)
+        if w is None or r is None:
+            continue
+        wv, rv = well_curves[w].to_numpy(float), type_log[r].to_numpy(float)
+        if log_scale:
+            wv, rv = _log_scale(wv), _log_scale(rv)
+        if np.isfinite(wv).mean() < _MIN_COVER or np.isfinite(rv).mean() < _MIN_COVER:
+            continue
+        kappa = float(np.median(curve_character(rv, ds_m)))
+        found.append((w, r, log_scale, kappa))
+    if not found:
+        return []
+    best = max(k for *_, k in found)
+    if best <= 0:
+        return [(w, r, ls, 1.0) for w, r, ls, _ in found[:1]]
+    return [(w, r, ls, k / best) for w, r, ls, k in found if k / best >= _MIN_WEIGHT]
+
+
 def _curve_matrix(well, column: ReferenceColumn, settings: CurveSettings
                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray, tuple[str, ...]]:
     tl = column.type_log
     if tl is None or len(tl) == 0:
         raise InputError("the reference column has no type-log curves; build it from a type "
                          "well (--type-well TYPE.las --type-tops TYPE_TOPS.csv)")
+    if settings.shared:
+        found = shared_curves(well.curves, tl, float(column.type_log_step_m))
+        if found:
+            wv = [well.curves[w].to_numpy(float) for w, *_ in found]
+            rv = [tl[r].to_numpy(float) for _, r, *_ in found]
+            wv = [_log_scale(v) if f[2] else v for v, f in zip(wv, found)]
+            rv = [_log_scale(v) if f[2] else v for v, f in zip(rv, found)]
+            return (np.stack(wv, axis=1), np.stack(rv, axis=1),
+                    np.array([f[3] for f in found]), tuple(f[0] for f in found))
     well_cols = {c.upper(): c for c in well.curves.columns}
     ref_cols = {c.upper(): c for c in tl.columns}
     names, weights, wv, rv = [], [], [], []
@@ -349,6 +421,8 @@ def find_cuts_from_curves(
         ends = (float(j.j_before), float(j.j_after))
         if getattr(j, "off_log", False) or not all(0.5 <= v <= end - 0.5 for v in ends):
             continue
+        if _on_log_strat(alignment.on_log, inp.step, int(j.sample)) * ds < _MIN_SIDE_M:
+            continue
         kappa = float(np.min(cmap.at(inp.s0 + np.asarray(ends) * ds)))
         confidence = weigh_confidence(float(j.confidence), kappa)
         if not confidence >= settings.min_confidence:
@@ -367,12 +441,32 @@ def find_cuts_from_curves(
     return CurveResult(cuts, track, alignment, names, weak)
 
 
+#: Least strat [m] the well must be placed on the type log either side of a cut: a side placed
+#: over less (the path hops onto the log's end and off again) has no correlation to speak of
+#: (common practice: no correlation without character); one calibration window (9 m).
+_MIN_SIDE_M = 9.0
+
+
+def _on_log_strat(on_log, step: np.ndarray, sample: int) -> float:
+    """Strat length [type-log samples] placed on the type log without a break, on the shorter
+    side of ``sample`` (inf when the engine has no off-log margins)."""
+    if on_log is None:
+        return math.inf
+    on = np.asarray(on_log, bool)
+    st = np.abs(np.asarray(step, float))
+    above = on[:sample][::-1]
+    below = on[sample:]
+    na = int(np.argmin(above)) if not above.all() else above.size
+    nb = int(np.argmin(below)) if not below.all() else below.size
+    return float(min(st[sample - na:sample].sum(), st[sample:sample + nb].sum()))
+
+
 def _character_notes(cuts: list[FaultCut], cmap, track: pd.DataFrame, column, unit
                      ) -> tuple[list[FaultCut], list[str]]:
     """Say where the curve evidence is weak (:mod:`wellfault.align.character`): one note per
     MD span of the well placed where the type log cannot tell positions apart, added to the
-    cuts inside it; a cut with either side on such a position says its confidence was
-    lowered."""
+    cuts inside it; a cut with either side on such a position says so, with its confidence
+    before and after the character weighting."""
     from .align.character import WEAK_BELOW
 
     spans = cmap.weak_spans(track["md_m"].to_numpy(float), track["s_m"].to_numpy(float))
@@ -387,8 +481,8 @@ def _character_notes(cuts: list[FaultCut], cmap, track: pd.DataFrame, column, un
         k = c.extra.get("character", np.inf)
         if k < WEAK_BELOW:
             add.append(f"type log without character at this cut (character {k:.2f} < "
-                       f"{WEAK_BELOW:g}): confidence lowered from "
-                       f"{c.extra.get('engine_confidence', np.nan):.2f}")
+                       f"{WEAK_BELOW:g}; confidence weighted for it: "
+                       f"{c.extra.get('engine_confidence', np.nan):.3f} -> {c.confidence:.3f})")
         if add:
             c = dataclasses.replace(c, notes="; ".join([c.notes, *add]))
         out.append(c)

@@ -345,7 +345,8 @@ def detect_files(
 ) -> WellAnalysis:
     """Read a well's files and analyse it (what ``wellfault detect`` does).
 
-    Curve evidence runs when a type well is given (``curves`` defaults to GR then); tops
+    Curve evidence runs when a type well is given (``curves`` defaults to every curve family
+    the well and the type well share then, :func:`wellfault.curvecuts.shared_curves`); tops
     evidence when ``tops`` is given; both are combined.
     """
     from .io import read_dip_table, read_las, read_tops
@@ -379,7 +380,7 @@ def detect_files(
         if col.type_log is None:
             raise InputError("--curve needs a type log: give --type-well TYPE.las and "
                              "--type-tops TYPE_TOPS.csv")
-        settings = CurveSettings.make(curves or ["GR"])
+        settings = CurveSettings.make(curves or None)
     if tops_df is None and settings is None:
         raise InputError("no evidence to work on: give --tops TOPS.csv, or a type well "
                          "(--type-well TYPE.las --type-tops TYPE_TOPS.csv) for the curves")

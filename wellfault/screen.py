@@ -1080,7 +1080,7 @@ def screen_wells(
                               depth_unit=None if depth_unit is None
                               else parse_depth_unit(depth_unit))
         curve_settings = curves if isinstance(curves, CurveSettings) else \
-            CurveSettings.make(curves or ["GR"])
+            CurveSettings.make(curves or None)
     elif curves is not None or type_tops is not None:
         raise InputError("curve evidence needs the type well: give --type-well TYPE.las and "
                          "--type-tops TYPE_TOPS.csv (or type_well=, type_tops=)")
