@@ -79,3 +79,37 @@ def test_pure_noise_type_log_gives_no_cut_with_confidence_half(refdata):
             conf += [c.confidence for c in res.cuts]
     print(f"\n{len(conf)} cuts on 12 wells against noise, confidences {np.round(conf, 2)}")
     assert all(c < 0.5 for c in conf)
+
+
+def test_detect_command_says_where_the_curve_evidence_is_weak(refdata, tmp_path, capsys):
+    """`wellfault detect` with a low-character type well: the weak spans are printed and put in
+    the report. The type well is vertical through the dipping beds, logged with the degraded
+    type log (MD = 1000 m + s / cos δ: a vertical hole drills TST = TVD cos δ)."""
+    from wellfault.cli import main
+    from wellfault.io import write_las
+    from wellfault.io.tables import write_survey, write_tops
+    from wellfault.well import Well
+
+    lg = _low("Wellington", str(refdata), 506)
+    sc = low_character_scenario(506, lg)
+    dip, azi = sc.bed_dip.attitude_at(np.array([0.0]))
+    dip, azi = float(np.ravel(dip)[0]), float(np.ravel(azi)[0])
+    tl = lg.type_log.type_log
+    md = 1000.0 + tl.index.to_numpy(float) / np.cos(np.radians(dip))
+    type_well = Well("TYPE-1", pd.DataFrame({"GR": tl["GR"].to_numpy()},
+                                            index=pd.Index(md, name="md_m")), "m")
+    write_las(type_well, tmp_path / "type.las")
+    write_tops(pd.DataFrame({"well": "TYPE-1", "surface": list(lg.type_log.names),
+                             "md_m": 1000.0 + lg.type_log.s_m / np.cos(np.radians(dip))}),
+               tmp_path / "type_tops.csv")
+    write_las(sc.well, tmp_path / "well.las")
+    write_survey(sc.trajectory.stations, tmp_path / "survey.csv")
+    report = tmp_path / "well.html"
+    code = main(["detect", str(tmp_path / "well.las"), "--survey", str(tmp_path / "survey.csv"),
+                 "--dip", f"{dip:.3f}/{azi:.3f}", "--type-well", str(tmp_path / "type.las"),
+                 "--type-tops", str(tmp_path / "type_tops.csv"), "--out",
+                 str(tmp_path / "cuts.csv"), "--report", str(report)])
+    assert code == 0
+    err = capsys.readouterr().err
+    assert "curve evidence weak from MD" in err
+    assert "curve evidence weak from MD" in report.read_text()

@@ -174,10 +174,15 @@ def _cmd_detect(args) -> int:
 
         write_well_report(args.report, well=result.well, column=result.column, cuts_df=df,
                           trajectory=result.trajectory, bed_dip=result.bed_dip,
-                          tops=result.tops, track=result.track, tolerance=result.tolerance)
+                          tops=result.tops, track=result.track, tolerance=result.tolerance,
+                          assumptions={"curve evidence": "; ".join(result.curve_notes) +
+                                       " (the type log cannot tell positions apart there)"}
+                          if result.curve_notes else None)
         print(f"report written to {args.report}", file=sys.stderr)
     suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
     print(_summarise(df, suffix), file=sys.stderr)
+    for note in result.curve_notes or []:
+        print(f"  {result.well.name}: {note}", file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK
 

@@ -35,7 +35,9 @@ class WellAnalysis:
 
     ``cuts`` is the cut table (DataFrame, caller's unit); ``records`` the same cuts as
     :class:`FaultCut` (metres); ``track`` the stratigraphic position track (``md_m, s_m, unit,
-    confidence``) when curves were aligned, else None; ``alignment`` the engine's result.
+    confidence``) when curves were aligned, else None; ``alignment`` the engine's result;
+    ``curve_notes`` where the curve evidence is weak (the type log has no character there;
+    :mod:`wellfault.align.character`), when curves were aligned.
     """
 
     cuts: pd.DataFrame
@@ -49,6 +51,7 @@ class WellAnalysis:
     column: ReferenceColumn | None = None
     tops: pd.DataFrame | None = None
     tolerance: TopsTolerance | None = None
+    curve_notes: list[str] | None = None   # "curve evidence weak from MD A to B ..." notes
 
 
 def analyse_well(
@@ -137,15 +140,15 @@ def analyse_well(
         cuts += find_cuts_from_tops(picks, column, trajectory, bed_dip=bed_dip,
                                     well=str(well.name), assumptions=assumptions,
                                     tolerance=tolerance, expected=expected)
-    track = alignment = None
+    track = alignment = notes = None
     if curves is not None:
         res = find_cuts_from_curves(well, column, trajectory, bed_dip=bed_dip, settings=curves,
                                     assumptions=assumptions, picks=picks)
         cuts = combine_evidence(cuts, res.cuts)
-        track, alignment = res.track, res.alignment
+        track, alignment, notes = res.track, res.alignment, res.weak
     frame = cuts_to_frame(cuts, unit if unit is not None else well.depth_unit)
     return WellAnalysis(frame, cuts, track, alignment, trajectory, bed_dip, assumptions, well,
-                        column, picks, tolerance)
+                        column, picks, tolerance, notes)
 
 
 def find_fault_cuts(well, column: ReferenceColumn, **kwargs) -> pd.DataFrame:
