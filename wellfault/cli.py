@@ -168,6 +168,7 @@ def _cmd_detect(args) -> int:
         curves=args.curve, depth_unit=args.depth_unit, output_unit=args.output_unit,
         tolerance=TopsTolerance(args.tolerance, args.tolerance_floor))
     df = result.cuts
+    weak = [n for n in result.notes if n.startswith("curve evidence weak")]
     _write_csv(df, args.out)
     if args.report:
         from .report import write_well_report
@@ -175,13 +176,13 @@ def _cmd_detect(args) -> int:
         write_well_report(args.report, well=result.well, column=result.column, cuts_df=df,
                           trajectory=result.trajectory, bed_dip=result.bed_dip,
                           tops=result.tops, track=result.track, tolerance=result.tolerance,
-                          assumptions={"curve evidence": "; ".join(result.curve_notes) +
+                          assumptions={"curve evidence": "; ".join(weak) +
                                        " (the type log cannot tell positions apart there)"}
-                          if result.curve_notes else None)
+                          if weak else None)
         print(f"report written to {args.report}", file=sys.stderr)
     suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
     print(_summarise(df, suffix), file=sys.stderr)
-    for note in result.curve_notes or []:
+    for note in weak:
         print(f"  {result.well.name}: {note}", file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK

@@ -438,7 +438,7 @@ def find_cuts_from_curves(
                          character=kappa, engine_confidence=float(j.confidence))
         cuts.append(cut)
     cuts, weak = _character_notes(cuts, cmap, track, column, well.depth_unit)
-    return CurveResult(cuts, track, alignment, names, weak)
+    return CurveResult(cuts, track, alignment, names, weak=weak)
 
 
 #: Least strat [m] the well must be placed on the type log either side of a cut: a side placed

@@ -8,6 +8,7 @@ command line gives them.
 
 from __future__ import annotations
 
+import dataclasses
 import warnings
 from dataclasses import dataclass
 from pathlib import Path
@@ -36,8 +37,9 @@ class WellAnalysis:
     ``cuts`` is the cut table (DataFrame, caller's unit); ``records`` the same cuts as
     :class:`FaultCut` (metres); ``track`` the stratigraphic position track (``md_m, s_m, unit,
     confidence``) when curves were aligned, else None; ``alignment`` the engine's result;
-    ``curve_notes`` where the curve evidence is weak (the type log has no character there;
-    :mod:`wellfault.align.character`), when curves were aligned.
+    ``notes`` the well-level findings that are not cuts (where the curve evidence is weak:
+    "curve evidence weak from MD A to B ...", the type log having no character there,
+    :mod:`wellfault.align.character`).
     """
 
     cuts: pd.DataFrame
@@ -51,7 +53,7 @@ class WellAnalysis:
     column: ReferenceColumn | None = None
     tops: pd.DataFrame | None = None
     tolerance: TopsTolerance | None = None
-    curve_notes: list[str] | None = None   # "curve evidence weak from MD A to B ..." notes
+    notes: list[str] = dataclasses.field(default_factory=list)
 
 
 def analyse_well(
@@ -140,12 +142,14 @@ def analyse_well(
         cuts += find_cuts_from_tops(picks, column, trajectory, bed_dip=bed_dip,
                                     well=str(well.name), assumptions=assumptions,
                                     tolerance=tolerance, expected=expected)
-    track = alignment = notes = None
+    track = alignment = None
+    notes: list[str] = []
     if curves is not None:
         res = find_cuts_from_curves(well, column, trajectory, bed_dip=bed_dip, settings=curves,
                                     assumptions=assumptions, picks=picks)
         cuts = combine_evidence(cuts, res.cuts)
-        track, alignment, notes = res.track, res.alignment, res.weak
+        notes += res.weak
+        track, alignment = res.track, res.alignment
     frame = cuts_to_frame(cuts, unit if unit is not None else well.depth_unit)
     return WellAnalysis(frame, cuts, track, alignment, trajectory, bed_dip, assumptions, well,
                         column, picks, tolerance, notes)
