@@ -311,8 +311,9 @@ def low_section(by, rich: dict | None) -> None:
         v = low[k]
         print(f"  goal {k}: {text} -> {_fmt(v)} ({'met' if test(v) else 'NOT met'})")
     v = cols["low, curves+tops"]
+    rec = v["recall |Δs|>=5 m"]
     print(f"  goal curves+tops recall |Δs|>=5 m between picks >= 0.95 -> "
-          f"{_fmt(v['recall |Δs|>=5 m'])} ({'met' if v['recall |Δs|>=5 m'] >= 0.95 else 'NOT met'})"
+          f"{_fmt(rec)} ({'met' if rec >= 0.95 else 'NOT met'})"
           f"; false cuts/well <= 0.05 -> {_fmt(v['false cuts / well'])} "
           f"({'met' if v['false cuts / well'] <= 0.05 else 'NOT met'})")
     if by["lowclose"]:

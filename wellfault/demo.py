@@ -131,8 +131,8 @@ def run_demo(folder: Path | None = None) -> str:
             if k < len(c):
                 r = c.iloc[k]
                 left = (f"{r.md_m:7.1f} [{r.md_top_m:.1f}-{r.md_base_m:.1f}]".ljust(30)
-                        + f" {_evidence(r.method):<11} {r.section:<9} {r.fault_type:<8} {r.tst_m:6.1f} "
-                        f"{r.vertical_separation_m:6.1f} {r.crossing:<25}")
+                        + f" {_evidence(r.method):<11} {r.section:<9} {r.fault_type:<8} "
+                        f"{r.tst_m:6.1f} {r.vertical_separation_m:6.1f} {r.crossing:<25}")
             else:
                 left = f"{'(not found)':<30} {'':<11} {'':<9} {'':<8} {'':>6} {'':>6} {'':<25}"
             if k < len(t):

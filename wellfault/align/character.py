@@ -39,7 +39,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["CharacterSettings", "curve_character", "log_character", "noise_variance", "weak_runs", "WEAK_BELOW",
+__all__ = ["CharacterSettings", "CharacterMap", "curve_character", "log_character",
+           "noise_variance", "weak_runs", "weigh_confidence", "WEAK_BELOW", "CHARACTER_COEF",
            "WeakInterval"]
 
 #: Below this character the type log cannot tell positions apart (module docstring).
