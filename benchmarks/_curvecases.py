@@ -68,7 +68,7 @@ def run_case(case, methods=("engine",), settings=None):
     col = column(dst)
     settings = settings or CurveSettings()
     fns = {"engine": find_cuts_from_curves, "dtw": find_cuts_dtw_baseline,
-           "lag": find_cuts_lag_screen}
+           "lag": find_cuts_lag_screen, "tops": _with_tops(sc.tops)}
     out = {}
     for m in methods:
         t0 = time.perf_counter()
@@ -76,6 +76,9 @@ def run_case(case, methods=("engine",), settings=None):
         dt = time.perf_counter() - t0
         if src == dst:
             rows, det = score_scenario(res.cuts, sc)
+            if m == "tops" and len(rows):      # counted where the cut lies between two picks
+                md = sc.tops["md_m"].dropna()
+                rows = rows[(rows["true_md_m"] > md.min()) & (rows["true_md_m"] < md.max())]
         else:                              # unrelated type log: nothing can be right
             rows = pd.DataFrame()
             det = pd.DataFrame({
@@ -83,6 +86,8 @@ def run_case(case, methods=("engine",), settings=None):
                 "confidence": [c.confidence for c in res.cuts], "real": False,
                 "margin": [c.extra.get("margin", np.nan) for c in res.cuts],
                 "correlation": [c.extra.get("correlation", np.nan) for c in res.cuts]})
+        det["character"] = [c.extra.get("character", np.nan) for c in res.cuts]
+        det["delta_s_m"] = [c.delta_s_m for c in res.cuts]
         for t in (rows, det):
             if len(t):
                 t["case"], t["log"], t["seed"], t["kind"] = label, src, seed, sc.kind
@@ -90,6 +95,20 @@ def run_case(case, methods=("engine",), settings=None):
                       for c in res.cuts]
         out[m] = (rows, det, dt)
     return out
+
+
+def _with_tops(tops):
+    """Curves and tops together (what ``wellfault detect --tops --type-well`` runs), with the
+    engine's call signature."""
+    def run(well, col, trajectory, *, bed_dip, settings):
+        from types import SimpleNamespace
+
+        from wellfault.detect import analyse_well
+
+        res = analyse_well(well, col, tops=tops, trajectory=trajectory, bed_dip=bed_dip,
+                           curves=settings)
+        return SimpleNamespace(cuts=res.records)
+    return run
 
 
 def low_cases(label: str, log_seeds, seeds, **kw):

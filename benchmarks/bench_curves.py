@@ -1,7 +1,7 @@
 """Accuracy of the curve evidence on wells forward-modelled from REAL gamma-ray type logs.
 
 Run:  python benchmarks/bench_curves.py [--per-log 70] [--invented 40] [--procs 2]
-      [--methods engine dtw lag] [--stress 15] [--save PREFIX]
+      [--methods engine dtw lag] [--stress 15] [--low 10] [--low-logs 3] [--save PREFIX]
 
 The issue "Fault cuts from log curves" sets the goals this script checks: on >= 200
 forward-modelled wells from type logs built on the real gamma-ray curves of
@@ -33,6 +33,15 @@ column (wellfault.forward.synthetic_column) is run for contrast and reported apa
 section reports, for the engine, wells aligned against an UNRELATED real type log (every cut is
 false: how many are reported, how many confidently) and wells with two faults 10-60 m apart.
 Times are wall seconds per well of each method alone on this machine (the header says which).
+
+Low-character type logs (the issue "Curve evidence on logs with little character"): each real
+log degraded ``--low-logs`` times (wellfault.scenarios.low_character_log: thick shales and
+monotonous carbonates, casing attenuation, old-tool response, counting noise; degradation seeds
+0+) with ``--low`` wells each (seeds 0+; throws 5-110 m, |Δs| about 5-140 m), printed beside the
+character-rich figures of the same run: curves alone; curves with tops (``wellfault detect
+--tops --type-well``; recall counted where the cut lies between the first and last pick);
+two faults 10-60 m apart; false cuts with confidence >= 0.9 and with |Δs| beyond the plausible
+range (over 200 m here: 1.4 x the largest throw drawn); the confidence reliability table.
 Not a test.
 """
 
@@ -156,6 +165,9 @@ def main(argv=None) -> None:
     ap.add_argument("--invented", type=int, default=40, help="wells on the invented column")
     ap.add_argument("--stress", type=int, default=15, help="stress wells per real log and kind")
     ap.add_argument("--methods", nargs="+", default=["engine", "dtw", "lag"])
+    ap.add_argument("--low", type=int, default=10, help="wells per low-character type log")
+    ap.add_argument("--low-logs", type=int, default=3,
+                    help="low-character type logs per real log")
     ap.add_argument("--procs", type=int, default=2)
     ap.add_argument("--save", default="", help="write the per-cut tables as PREFIX_*.csv")
     a = ap.parse_args(argv)
@@ -167,13 +179,17 @@ def main(argv=None) -> None:
     unrel = cc.cases("unrelated", cc.REAL, range(20000, 20000 + a.stress), dst=cc.unrelated)
     close = cc.cases("close", cc.REAL, range(21000, 21000 + a.stress), min_faults=2,
                      fault_gap_m=(10.0, 60.0), fault_clearance_m=15.0)
+    low = cc.low_cases("low", range(a.low_logs), range(a.low))
+    lowclose = cc.low_cases("lowclose", range(a.low_logs), range(30000, 30000 + a.low // 2),
+                            close_faults=True)
     jobs = [(c, methods) for c in real + inv] + [(c, ("engine",)) for c in unrel + close]
+    jobs += [(c, ("engine", "tops")) for c in low] + [(c, ("engine",)) for c in lowclose]
     t0 = time.time()
     with Pool(a.procs) as pool:
         results = pool.map(_one, jobs, chunksize=1)
     wall = time.time() - t0
     by = {lab: [(c, r) for c, r in results if c[0] == lab]
-          for lab in ("real", "invented", "unrelated", "close")}
+          for lab in ("real", "invented", "unrelated", "close", "low", "lowclose")}
 
     print(f"wellfault curve evidence benchmark — {platform.platform()}, "
           f"{os.cpu_count()} CPUs, {a.procs} processes, {wall:.0f} s wall")
@@ -219,6 +235,8 @@ def main(argv=None) -> None:
         print(f"\n== contrast: {len(by['invented'])} wells on the INVENTED column ==")
         print(table(figs_i, goals=False))
 
+    if by["low"]:
+        low_section(by, figs.get("engine"))
     if not by["close"] or not by["unrelated"]:
         _save(a.save, methods, by)
         return
@@ -243,6 +261,72 @@ def main(argv=None) -> None:
           .to_string(index=False))
 
     _save(a.save, methods, by)
+
+
+PLAUSIBLE_M = 200.0    # |Δs| beyond this is implausible for these wells (1.4 x the largest throw)
+
+LOW_GOALS = [  # (figure, test, text) of the issue "Curve evidence on logs with little character"
+    ("recall |Δs|>=5 m", lambda v: v >= 0.85, ">= 0.85 (curves alone)"),
+    ("false cuts / well", lambda v: v <= 0.1, "<= 0.1 (curves alone)"),
+    ("false cuts with conf >= 0.9", lambda v: v == 0, "none"),
+    ("false cuts |Δs| > 200 m", lambda v: v == 0, "none"),
+]
+
+
+def low_figures(rows, det, wells, secs) -> dict:
+    f = figures(rows, det, wells, secs)
+    false = det[~det["real"].astype(bool)] if len(det) else det
+    f["false cuts with conf >= 0.9"] = int((false["confidence"] >= 0.9).sum()) if len(det) else 0
+    f["false cuts |Δs| > 200 m"] = int((false["delta_s_m"].abs() > PLAUSIBLE_M).sum()) \
+        if len(det) else 0
+    return f
+
+
+def low_section(by, rich: dict | None) -> None:
+    """The low-character figures beside the character-rich ones of the same run."""
+    from wellfault.evaluation import reliability_table
+
+    nl = len(by["low"])
+    cols = {}
+    if rich is not None:
+        cols["rich, curves"] = rich
+    r, d, s = collect(by["low"], "engine")
+    cols["low, curves"] = low_figures(r, d, nl, s)
+    rt, dt, st = collect(by["low"], "tops")
+    cols["low, curves+tops"] = low_figures(rt, dt, nl, st)
+    if by["lowclose"]:
+        rc, dc, sc = collect(by["lowclose"], "engine")
+        cols["low, 2 close faults"] = low_figures(rc, dc, len(by["lowclose"]), sc)
+    print(f"\n== LOW-CHARACTER type logs: {nl} wells ({nl // len(cc.REAL)} per real log, "
+          "degraded; curves+tops recall counted between the first and last pick) ==")
+    keep = ["wells", "true cuts |Δs|>=5 m", "recall |Δs|>=5 m", "  recall 5-10 m",
+            "  recall 10-20 m", "  recall 20-40 m", "  recall >= 40 m", "depth error median [m]",
+            "|Δs| error / max(10%,1m), median", "false cuts / well",
+            "false cuts with conf >= 0.9", "false cuts |Δs| > 200 m",
+            "cuts with conf >= 0.9: real", "time / well [s]"]
+    print(table({k: {kk: v.get(kk, "-") for kk in keep} for k, v in cols.items()},
+                goals=False))
+    low = cols["low, curves"]
+    for k, test, text in LOW_GOALS:
+        v = low[k]
+        print(f"  goal {k}: {text} -> {_fmt(v)} ({'met' if test(v) else 'NOT met'})")
+    v = cols["low, curves+tops"]
+    rec = v["recall |Δs|>=5 m"]
+    print(f"  goal curves+tops recall |Δs|>=5 m between picks >= 0.95 -> "
+          f"{_fmt(rec)} ({'met' if rec >= 0.95 else 'NOT met'})"
+          f"; false cuts/well <= 0.05 -> {_fmt(v['false cuts / well'])} "
+          f"({'met' if v['false cuts / well'] <= 0.05 else 'NOT met'})")
+    if by["lowclose"]:
+        v = cols["low, 2 close faults"]["recall |Δs|>=5 m"]
+        print(f"  goal two close faults recall >= 0.9 -> {_fmt(v)} "
+              f"({'met' if v >= 0.9 else 'NOT met'})")
+    false = d[~d["real"].astype(bool)] if len(d) else d
+    if len(false):
+        print("  false cuts (curves alone), |Δs| m: "
+              + ", ".join(f"{abs(x):.0f}" for x in sorted(false["delta_s_m"].abs())))
+    print("\nreliability, low-character wells, curves alone (predicted confidence bins vs "
+          "observed fraction real):")
+    print(reliability_table(d["confidence"], d["real"].astype(bool)).to_string(index=False))
 
 
 def _save(prefix, methods, by):

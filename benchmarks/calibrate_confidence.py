@@ -20,7 +20,15 @@ Calibration set (cases in _curvecases.py):
 * ``off``       — wells allowed to drill past the type log's ends (no inside margin);
 * ``close``     — two faults 10-60 m of MD apart where a well has two (short correlated runs
   between cuts are not a sign of a false cut);
-* ``unrelated`` — wells drawn from one real log aligned to another's type log: every cut false.
+* ``unrelated`` — wells drawn from one real log aligned to another's type log: every cut false;
+* ``low``       — wells on low-character type logs degraded from the real logs (thick shales,
+  casing attenuation, old-tool response, counting noise; wellfault.scenarios.low_character_log,
+  degradation seeds 10000+), and ``lowclose``, the same with two faults 10-60 m apart.
+
+Then the down-weighting of cuts where the type log has little character
+(``wellfault.align.character.CHARACTER_COEF``) is fitted the same way, with the refitted engine
+confidence as an offset: logit P = logit(confidence) + coef * min(ln((κ + 0.05) / 1.05), 0),
+coef >= 0. Store both printed values.
 
 A cut is real when it matches a true cut (wellfault.evaluation.match_detected, 1 m slack).
 """
@@ -52,6 +60,10 @@ def calibration_cases(per_log: int) -> list:
                     min_faults=2, fault_gap_m=(10.0, 60.0), fault_clearance_m=15.0)
     out += cc.cases("unrelated", cc.REAL, range(s0 + 3000, s0 + 3000 + per_log // 2),
                     dst=cc.unrelated)
+    low = range(s0, s0 + max(per_log // 10, 1))            # degraded type logs per real log
+    out += cc.low_cases("low", low, range(s0 + 5000, s0 + 5000 + per_log // 2))
+    out += cc.low_cases("lowclose", low, range(s0 + 6000, s0 + 6000 + per_log // 4),
+                        close_faults=True)
     return out
 
 
@@ -83,6 +95,22 @@ def fit(X: np.ndarray, y: np.ndarray, ridge: float = 1e-2) -> np.ndarray:
     return minimize(nll, np.zeros(X.shape[1]), jac=grad, method="BFGS").x
 
 
+def fit_character(p: np.ndarray, kappa: np.ndarray, y: np.ndarray) -> float:
+    """The character coefficient (module docstring) by maximum likelihood, ``p`` the engine's
+    fitted confidence of each cut."""
+    from scipy.optimize import minimize_scalar
+
+    q = np.clip(p, 1e-9, 1 - 1e-9)
+    off = np.log(q / (1 - q))
+    drop = np.minimum(np.log((np.nan_to_num(kappa, nan=1e9) + 0.05) / 1.05), 0.0)
+
+    def nll(c):
+        z = off + c * drop
+        return float(np.sum(np.logaddexp(0.0, z) - y * z))
+
+    return float(minimize_scalar(nll, bounds=(0.0, 10.0), method="bounded").x)
+
+
 def main(argv=None) -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--per-log", type=int, default=40)
@@ -101,13 +129,21 @@ def main(argv=None) -> None:
     X, y = features(det), det["real"].to_numpy(float)
     b = fit(X, y)
     p = 1.0 / (1.0 + np.exp(-(X @ b)))
+    coef = fit_character(p, det["character"].to_numpy(float), y)
+    drop = np.minimum(np.log((det["character"].to_numpy(float) + 0.05) / 1.05), 0.0)
+    pw = 1.0 / (1.0 + np.exp(-(np.log(p / (1 - p)) + coef * drop)))
     print(f"calibration set: {len(todo)} wells, {len(det)} reported cuts, "
           f"{int(y.sum())} real; by case:")
     print(det.groupby("case")["real"].agg(["count", "sum"]).to_string())
     print("\nCONFIDENCE_COEF = (" + ", ".join(f"{v:.4g}" for v in b) + ")")
     print("  [1, ln(1 + margin), correlation, ln(run rows)]\n")
-    print("reliability on the calibration set (fitted):")
-    print(reliability_table(p, y.astype(bool)).to_string(index=False))
+    print(f"CHARACTER_COEF = {coef:.4g}")
+    print("  log-odds lowered by CHARACTER_COEF * min(ln((character + 0.05) / 1.05), 0)\n")
+    print("reliability on the calibration set (fitted, character weighting applied):")
+    print(reliability_table(pw, y.astype(bool)).to_string(index=False))
+    low = det["case"].astype(str).str.startswith("low").to_numpy()
+    print("\n... its low-character wells alone:")
+    print(reliability_table(pw[low], y[low].astype(bool)).to_string(index=False))
 
 
 if __name__ == "__main__":

@@ -57,3 +57,6 @@ def test_demo_command_prints_cuts_beside_truth_and_the_caution(capsys, monkeypat
     out, err = capsys.readouterr()
     assert "true cuts found: 9 of 9" in out
     assert "qualified geoscientist" in err
+    # the curve evidence too: which evidence placed each cut, and the curves without the tops
+    assert "placed by" in out and "tops+curves" in out
+    assert "Curves alone (no tops): true cuts found 9 of 9" in out

@@ -21,7 +21,7 @@ def test_tool_response_has_the_drawn_vertical_resolution():
     ds = 0.01
     v = np.zeros(2001)
     v[1000] = 1.0
-    signal, recorded, stretches, drawn = degrade_log(v, ds, 500, spec)
+    signal, recorded, stretches, _ = degrade_log(v, ds, 500, spec)
     assert stretches == [] and np.allclose(signal, recorded)
     above = np.flatnonzero(signal >= signal.max() / 2)
     assert (above[-1] - above[0] + 1) * ds == pytest.approx(1.5, abs=2 * ds)

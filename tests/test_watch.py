@@ -294,8 +294,10 @@ def test_cli_jsonl_ends_with_the_cuts_of_detect(capsys, tmp_path):
     from wellfault.cli_watch import main
 
     out_csv = tmp_path / "cuts.csv"
+    # watch follows GR unless told (a live feed's curves are fixed before its header arrives);
+    # detect aligns every curve the well shares with the type well unless told: tell it GR
     assert wellfault_main(["detect", str(FIELD / "VR_11.las"), "--survey",
-                           str(FIELD / "VR_11_survey.csv"), *WATCH_ARGS,
+                           str(FIELD / "VR_11_survey.csv"), *WATCH_ARGS, "--curve", "GR",
                            "--out", str(out_csv)]) == 0
     capsys.readouterr()
     assert main(["watch", str(FIELD / "VR_11.las"), "--survey", str(FIELD / "VR_11_survey.csv"),

@@ -16,7 +16,13 @@ from . import CAUTION, __version__
 from .cli_screen import add_screen_parser
 from .cli_watch import add_watch_parser
 from .errors import WellfaultError, WellfaultWarning
-from .precision import DECIMALS_HELP, DEFAULT_DECIMALS, Decimals, decimals_option
+from .precision import (
+    DECIMALS_HELP,
+    DEFAULT_DECIMALS,
+    Decimals,
+    decimals_option,
+    lengths_in_text,
+)
 
 __all__ = ["main", "console"]
 
@@ -63,7 +69,9 @@ def _add_detect(sub):
                    help="the type well's survey (vertical when omitted)")
     p.add_argument("--curve", action="append", metavar="NAME[:WEIGHT]",
                    help="curve to align (repeatable, optional weight, e.g. --curve GR:2 "
-                        "--curve RHOB); default GR when a type well is given")
+                        "--curve RHOB); default: every curve family (gamma ray, resistivity, "
+                        "density, neutron, sonic) the well and the type well share, each "
+                        "weighted by the type log's character in it")
     add_separation_option(p)
     p.add_argument("--pick-tolerance", type=float, metavar="LENGTH",
                    help="with --tops and a type well, each pick anchors the curve alignment "
@@ -218,6 +226,7 @@ def _cmd_detect(args) -> int:
         tolerance=TopsTolerance(args.tolerance, args.tolerance_floor),
         max_separation=args.max_separation, pick_tolerance=args.pick_tolerance)
     df = result.cuts
+    weak = [n for n in result.notes if n.startswith("curve evidence weak")]
     _write_csv(df, args.out, args.decimals)
     suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
     if args.report:
@@ -226,9 +235,15 @@ def _cmd_detect(args) -> int:
         write_well_report(args.report, well=result.well, column=result.column, cuts_df=df,
                           trajectory=result.trajectory, bed_dip=result.bed_dip,
                           tops=result.tops, track=result.track, tolerance=result.tolerance,
-                          unit=suffix, decimals=args.decimals)
+                          unit=suffix, decimals=args.decimals,
+                          assumptions={"curve evidence": "; ".join(weak) +
+                                       " (the type log cannot tell positions apart there)"}
+                          if weak else None)
         print(f"report written to {_where(args.report)}", file=sys.stderr)
     print(_summarise(df, suffix, args.decimals), file=sys.stderr)
+    for note in weak:
+        print(f"  {result.well.name}: {lengths_in_text(note, suffix, args.decimals)}",
+              file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK
 

@@ -30,7 +30,8 @@ from .results import FaultCut
 
 __all__ = ["CurveSettings", "CurveResult", "align_well", "find_cuts_from_curves",
            "find_cuts_dtw_baseline", "find_cuts_lag_screen", "combine_evidence",
-           "predicted_steps", "parse_curve_spec", "plausible_separation_m"]
+           "predicted_steps", "parse_curve_spec", "plausible_separation_m", "shared_curves",
+           "CURVE_FAMILIES"]
 
 
 @dataclass(frozen=True)
@@ -67,6 +68,11 @@ class CurveSettings:
       sample at the pick must lie within this strat distance (TST) of the surface in the type
       log, or the path pays the engine's ``anchor_cost`` (engine.py, "Anchors"). A pick the
       curves do not honour is reported as a possible mis-pick (:attr:`CurveResult.mispicks`).
+    ``shared`` (what ``make()`` without curves gives, and the commands' default): align every
+    curve family the well and the type log share — gamma ray, resistivity, density, neutron,
+    sonic (:data:`CURVE_FAMILIES`) — each weighted by the type log's character in it
+    (:func:`shared_curves`); ``curves`` then only says what to use when they share none of
+    them. Curves named with ``--curve`` (``make(curves=[...])``) are used as given.
 
     ``min_confidence`` is the least calibrated confidence of a reported cut (default 0.01: a
     jump the evidence gives under 1 % of being real — in practice a well that does not
@@ -83,6 +89,7 @@ class CurveSettings:
     gap_m: float = 2.0
     max_separation_m: float | None = None
     pick_tolerance_m: float = 2.0
+    shared: bool = False
 
     @classmethod
     def make(cls, curves=None, *, min_jump_m: float = 2.0, off_log_m: float = 150.0,
@@ -109,7 +116,7 @@ class CurveSettings:
         return cls(spec, float(min_jump_m), tuple(sorted(engine.items())), float(off_log_m),
                    float(calibrate_window_m), float(min_confidence), float(gap_m),
                    None if max_separation_m is None else float(max_separation_m),
-                   float(pick_tolerance_m))
+                   float(pick_tolerance_m), shared=curves is None)
 
     def engine_kwargs(self, ds_m: float, column_m: float | None = None) -> dict:
         """Keyword arguments for the engine on a type log of step ``ds_m`` and thickness
@@ -181,6 +188,7 @@ class CurveResult:
     mispicks: list[tuple[str, float, str]] = dataclasses.field(default_factory=list)
     #: the plausible separation the jump-size prior used [m TST] (inf: no prior)
     max_separation_m: float = math.inf
+    weak: list[str] = dataclasses.field(default_factory=list)  # "curve evidence weak ..." notes
 
 
 def gap_fillers(md_above: float, md_below: float, nominal_m: float, gap_m: float
@@ -244,12 +252,76 @@ def predicted_steps(md_m: np.ndarray, trajectory, bed_dip: BedDip, picks=None) -
     return out
 
 
+#: Curve families aligned by default when the well and the type log share them, each with the
+#: mnemonics recognised (first match wins; case-insensitive) and whether it is correlated on a
+#: log scale (resistivity spans decades and is read on a logarithmic scale, common practice).
+CURVE_FAMILIES: dict[str, tuple[tuple[str, ...], bool]] = {
+    "gamma ray": (("GR", "GRC", "SGR", "CGR", "GRD", "GAM"), False),
+    "resistivity": (("RT", "RT90", "ILD", "LLD", "RLA5", "RDEP", "RD", "RILD", "RES", "ILM",
+                     "LLS"), True),
+    "density": (("RHOB", "RHOZ", "DEN", "ZDEN"), False),
+    "neutron": (("NPHI", "TNPH", "NPOR", "PHIN", "CNC"), False),
+    "sonic": (("DT", "DTC", "DTCO", "AC"), False),
+}
+_MIN_COVER = 0.5      # a shared curve is used where at least half its samples are valid
+_MIN_WEIGHT = 0.1     # ... and its character is at least this fraction of the best curve's
+
+
+def _log_scale(v: np.ndarray) -> np.ndarray:
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(v > 0, np.log10(np.where(v > 0, v, 1.0)), np.nan)
+
+
+def shared_curves(well_curves: pd.DataFrame, type_log: pd.DataFrame, ds_m: float
+                  ) -> list[tuple[str, str, bool, float]]:
+    """The curve families of :data:`CURVE_FAMILIES` both logs carry, as (well mnemonic,
+    type-log mnemonic, log scale, weight).
+
+    A family is used when each log has a mnemonic of it with at least half its samples valid;
+    its weight is the type log's median character in it (:mod:`wellfault.align.character`)
+    over the best family's, and a family under a tenth of the best is left out (it would add
+    noise, not evidence).
+    """
+    from .align.character import curve_character
+
+    wl = {c.upper(): c for c in well_curves.columns}
+    rl = {c.upper(): c for c in type_log.columns}
+    found = []
+    for aliases, log_scale in CURVE_FAMILIES.values():
+        w = next((wl[a] for a in aliases if a in wl), None)
+        r = next((rl[a] for a in aliases if a in rl), None)
+        if w is None or r is None:
+            continue
+        wv, rv = well_curves[w].to_numpy(float), type_log[r].to_numpy(float)
+        if log_scale:
+            wv, rv = _log_scale(wv), _log_scale(rv)
+        if np.isfinite(wv).mean() < _MIN_COVER or np.isfinite(rv).mean() < _MIN_COVER:
+            continue
+        kappa = float(np.median(curve_character(rv, ds_m)))
+        found.append((w, r, log_scale, kappa))
+    if not found:
+        return []
+    best = max(k for *_, k in found)
+    if best <= 0:
+        return [(w, r, ls, 1.0) for w, r, ls, _ in found[:1]]
+    return [(w, r, ls, k / best) for w, r, ls, k in found if k / best >= _MIN_WEIGHT]
+
+
 def _curve_matrix(well, column: ReferenceColumn, settings: CurveSettings
                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray, tuple[str, ...]]:
     tl = column.type_log
     if tl is None or len(tl) == 0:
         raise InputError("the reference column has no type-log curves; build it from a type "
                          "well (--type-well TYPE.las --type-tops TYPE_TOPS.csv)")
+    if settings.shared:
+        found = shared_curves(well.curves, tl, float(column.type_log_step_m))
+        if found:
+            wv = [well.curves[w].to_numpy(float) for w, *_ in found]
+            rv = [tl[r].to_numpy(float) for _, r, *_ in found]
+            wv = [_log_scale(v) if f[2] else v for v, f in zip(wv, found)]
+            rv = [_log_scale(v) if f[2] else v for v, f in zip(rv, found)]
+            return (np.stack(wv, axis=1), np.stack(rv, axis=1),
+                    np.array([f[3] for f in found]), tuple(f[0] for f in found))
     well_cols = {c.upper(): c for c in well.curves.columns}
     ref_cols = {c.upper(): c for c in tl.columns}
     names, weights, wv, rv = [], [], [], []
@@ -457,8 +529,10 @@ def find_cuts_from_curves(
     strat range the type log covers there; the jump's size is unknown), nor one whose
     confidence is under ``settings.min_confidence``. Each cut's ``extra``
     holds the engine's evidence: ``margin``, ``correlation``, ``rows_above``, ``rows_below``,
-    and ``beyond_plausible`` (True for a cut larger than the plausible separation, which its
-    notes flag too).
+    ``beyond_plausible`` (True for a cut larger than the plausible separation, which its
+    notes flag too), ``character`` (the type log's character at the cut,
+    :mod:`wellfault.align.character`) and ``engine_confidence`` (before the character
+    weighting).
 
     With ``picks``, each picked surface of the column that the type log covers anchors the
     alignment (``settings.pick_tolerance_m``); a pick the aligned path does not honour is
@@ -467,6 +541,8 @@ def find_cuts_from_curves(
     the picks: the anchors would only pull the path into detours (spurious jumps), so the
     curves are aligned again without them and the one note stays.
     """
+    from .align.character import CharacterMap, weigh_confidence
+
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
     inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
     anchors = _anchors(picks, column, inp)
@@ -477,6 +553,7 @@ def find_cuts_from_curves(
     ds, names = inp.ds, inp.names
     conf = np.asarray(alignment.confidence, dtype=float)
     track = inp.track(s, column.unit_at(s), np.where(np.isfinite(s), conf, 0.0))
+    cmap = CharacterMap.from_type_log(inp.ref, inp.s0, ds, weights=inp.weights)
     end = len(column.type_log) - 1
     cuts: list[FaultCut] = []
     for j in alignment.jumps:
@@ -486,12 +563,16 @@ def find_cuts_from_curves(
         ends = (float(j.j_before), float(j.j_after))
         if getattr(j, "off_log", False) or not all(0.5 <= v <= end - 0.5 for v in ends):
             continue
-        if not float(j.confidence) >= settings.min_confidence:
+        if _on_log_strat(alignment.on_log, inp.step, int(j.sample)) * ds < _MIN_SIDE_M:
+            continue
+        kappa = float(np.min(cmap.at(inp.s0 + np.asarray(ends) * ds)))
+        confidence = weigh_confidence(float(j.confidence), kappa)
+        if not confidence >= settings.min_confidence:
             continue
         first, last = (int(v) for v in j.bracket)
         cut = _measured(well, column, trajectory, bed_dip, assumptions, picks, inp,
                         sample=int(j.sample), first=first, last=last, delta_s_m=ds_m,
-                        j_before=ends[0], j_after=ends[1], confidence=float(j.confidence),
+                        j_before=ends[0], j_after=ends[1], confidence=confidence,
                         method="curves",
                         note=f"curves {', '.join(names)} aligned to the type log")
         beyond = abs(ds_m) > plausible
@@ -503,9 +584,59 @@ def find_cuts_from_curves(
                 "other evidence"))
         cut.extra.update(margin=float(j.margin), correlation=float(j.correlation),
                          rows_above=int(j.rows_above), rows_below=int(j.rows_below),
-                         beyond_plausible=bool(beyond))
+                         beyond_plausible=bool(beyond), character=kappa,
+                         engine_confidence=float(j.confidence))
         cuts.append(cut)
-    return CurveResult(cuts, track, alignment, names, mis, plausible)
+    cuts, weak = _character_notes(cuts, cmap, track, column, well.depth_unit)
+    return CurveResult(cuts, track, alignment, names, mis, plausible, weak)
+
+
+#: Least strat [m] the well must be placed on the type log either side of a cut: a side placed
+#: over less (the path hops onto the log's end and off again) has no correlation to speak of
+#: (common practice: no correlation without character); one calibration window (9 m).
+_MIN_SIDE_M = 9.0
+
+
+def _on_log_strat(on_log, step: np.ndarray, sample: int) -> float:
+    """Strat length [type-log samples] placed on the type log without a break, on the shorter
+    side of ``sample`` (inf when the engine has no off-log margins)."""
+    if on_log is None:
+        return math.inf
+    on = np.asarray(on_log, bool)
+    st = np.abs(np.asarray(step, float))
+    above = on[:sample][::-1]
+    below = on[sample:]
+    na = int(np.argmin(above)) if not above.all() else above.size
+    nb = int(np.argmin(below)) if not below.all() else below.size
+    return float(min(st[sample - na:sample].sum(), st[sample:sample + nb].sum()))
+
+
+def _character_notes(cuts: list[FaultCut], cmap, track: pd.DataFrame, column, unit
+                     ) -> tuple[list[FaultCut], list[str]]:
+    """Say where the curve evidence is weak (:mod:`wellfault.align.character`): one note per
+    MD span of the well placed where the type log cannot tell positions apart, added to the
+    cuts inside it; a cut with either side on such a position says so, with its confidence
+    before and after the character weighting."""
+    from .align.character import WEAK_BELOW
+
+    spans = cmap.weak_spans(track["md_m"].to_numpy(float), track["s_m"].to_numpy(float))
+    notes = []
+    for md_top, md_base, s_a, s_b in spans:
+        units = column.unit_at(np.array([s_a, s_b]))
+        notes.append(cmap.note(md_top, md_base, unit.suffix, unit.metres,
+                               (str(units[0] or ""), str(units[1] or ""))))
+    out = []
+    for c in cuts:
+        add = [n for n, (a, b, _, _) in zip(notes, spans) if a - 1.0 <= c.md_m <= b + 1.0]
+        k = c.extra.get("character", np.inf)
+        if k < WEAK_BELOW:
+            add.append(f"type log without character at this cut (character {k:.2f} < "
+                       f"{WEAK_BELOW:g}; confidence weighted for it: "
+                       f"{c.extra.get('engine_confidence', np.nan):.3f} -> {c.confidence:.3f})")
+        if add:
+            c = dataclasses.replace(c, notes="; ".join([c.notes, *add]))
+        out.append(c)
+    return out, notes
 
 
 def find_cuts_dtw_baseline(

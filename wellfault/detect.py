@@ -42,8 +42,9 @@ class WellAnalysis:
     ``cuts`` is the cut table (DataFrame, caller's unit); ``records`` the same cuts as
     :class:`FaultCut` (metres); ``track`` the stratigraphic position track (``md_m, s_m, unit,
     confidence``) when curves were aligned, else None; ``alignment`` the engine's result;
-    ``notes`` the well-level findings that are not cuts (picks the curves do not honour:
-    "possible mis-pick ...").
+    ``notes`` the well-level findings that are not cuts: picks the curves do not honour
+    ("possible mis-pick ..."), and where the curve evidence is weak ("curve evidence weak from
+    MD A to B ...", the type log having no character there, :mod:`wellfault.align.character`).
     """
 
     cuts: pd.DataFrame
@@ -161,6 +162,7 @@ def analyse_well(
         cuts = _note_mispicks(cuts, res.mispicks, well)
         notes = [n for _, _, n in res.mispicks]
         cuts = combine_evidence(cuts, res.cuts)
+        notes += res.weak
         track, alignment = res.track, res.alignment
     frame = cuts_to_frame(cuts, unit if unit is not None else well.depth_unit)
     return WellAnalysis(frame, cuts, track, alignment, trajectory, bed_dip, assumptions, well,
@@ -382,7 +384,8 @@ def detect_files(
 ) -> WellAnalysis:
     """Read a well's files and analyse it (what ``wellfault detect`` does).
 
-    Curve evidence runs when a type well is given (``curves`` defaults to GR then); tops
+    Curve evidence runs when a type well is given (``curves`` defaults to every curve family
+    the well and the type well share then, :func:`wellfault.curvecuts.shared_curves`); tops
     evidence when ``tops`` is given; both are combined. ``max_separation`` (the plausible fault
     separation, TST) and ``pick_tolerance`` (TST) are in the input depth unit
     (:class:`~wellfault.curvecuts.CurveSettings`).
@@ -424,7 +427,7 @@ def detect_files(
             extra["max_separation_m"] = float(max_separation) * k
         if pick_tolerance is not None:
             extra["pick_tolerance_m"] = float(pick_tolerance) * k
-        settings = CurveSettings.make(curves or ["GR"], **extra)
+        settings = CurveSettings.make(curves or None, **extra)
     elif max_separation is not None or pick_tolerance is not None:
         raise InputError("--max-separation and --pick-tolerance tune the curve evidence: give "
                          "a type well too (--type-well TYPE.las --type-tops TYPE_TOPS.csv)")

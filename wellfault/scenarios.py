@@ -599,7 +599,8 @@ def low_character_scenario(seed: int, log: LowCharacterLog, *, close_faults: boo
     """A well drawn through a low-character log's rock (:func:`curve_scenario`).
 
     Vertical, deviated and high-angle wells with 0–2 normal or reverse faults of throw 5–110 m
-    (|Δs| about 5–140 m; more where beds dip against a low-angle reverse fault), or with ``close_faults`` two faults 10–60 m of MD apart. The well's
+    (|Δs| about 5–140 m; more where beds dip against a low-angle reverse fault), or with
+    ``close_faults`` two faults 10–60 m of MD apart. The well's
     noise is drawn in ``log.spec.well_noise_rel`` × the *original* log's spread (counting noise
     does not shrink with the attenuated signal, :class:`LowCharacterSpec`). Detect against
     ``log.type_log``; the scenario's ``column`` is the rock (same surfaces).

@@ -1129,11 +1129,11 @@ def screen_wells(
                               depth_unit=None if depth_unit is None
                               else parse_depth_unit(depth_unit))
         curve_settings = curves if isinstance(curves, CurveSettings) else \
-            CurveSettings.make(curves or ["GR"])
+            CurveSettings.make(curves or None)
         if max_separation_m is not None:
             curve_settings = dataclasses.replace(
                 curve_settings, max_separation_m=CurveSettings.make(
-                    ["GR"], max_separation_m=max_separation_m).max_separation_m)
+                    None, max_separation_m=max_separation_m).max_separation_m)
     elif curves is not None or type_tops is not None or max_separation_m is not None:
         raise InputError("curve evidence needs the type well: give --type-well TYPE.las and "
                          "--type-tops TYPE_TOPS.csv (or type_well=, type_tops=)")
