@@ -57,6 +57,10 @@ def test_demo_command_prints_cuts_beside_truth_and_the_caution(capsys, monkeypat
     out, err = capsys.readouterr()
     assert "true cuts found: 9 of 9" in out
     assert "qualified geoscientist" in err
-    # the curve evidence too: which evidence placed each cut, and the curves without the tops
-    assert "placed by" in out and "tops+curves" in out
-    assert "Curves alone (no tops): true cuts found 9 of 9" in out
+    # the curve evidence too: which evidence found each cut and what placed it, and the
+    # curves without the tops and without the mapped planes (placed by the curves alone)
+    assert "found>placed" in out and "tops+curves>F1" in out
+    alone = out.split("Curves alone (no tops, no fault planes): ", 1)[1]
+    assert alone.startswith("true cuts found 9 of 9, MD error median ")
+    assert float(alone.split("median ", 1)[1].split(" m")[0]) < 1.0  # placed, not copied
+    assert "other cuts 0" in alone

@@ -12,6 +12,7 @@ curves alone (where the tops do not steer the answer).
 from __future__ import annotations
 
 import json
+import re
 import tempfile
 from pathlib import Path
 
@@ -47,14 +48,16 @@ def field_planes(meta: dict) -> tuple[FaultPlane, ...]:
                             f["point_y_m"], f["point_tvdss_m"]) for f in meta["faults"])
 
 
-def detect_field(folder: Path, *, tops: bool = True, curves: bool = False
+def detect_field(folder: Path, *, tops: bool = True, curves: bool = False, planes: bool = True
                  ) -> tuple[pd.DataFrame, pd.DataFrame, dict]:
     """Run detection on every well of the demo field; returns (cuts in m, truth, meta).
 
     ``tops``: the picks against the reference column; ``curves``: the wells' curves aligned to
     the type log of the field's type well (``meta["type_well"]``; every curve family the
     wells share with it). Cuts found by both are one ``method="both"`` cut placed by the
-    curves; each cut's ``notes`` say where the curve evidence is weak.
+    curves; each cut's ``notes`` say where the curve evidence is weak. ``planes``: the
+    field's mapped fault planes give each cut its fault attitude and place it where a plane
+    crosses the well inside the evidence's bracket (without them the evidence places it).
     """
     from .io import read_column_table, read_las, read_manifest, read_survey, read_tops
     from .trajectory import Trajectory
@@ -64,7 +67,7 @@ def detect_field(folder: Path, *, tops: bool = True, curves: bool = False
     manifest = read_manifest(folder / "manifest.csv")
     if curves:
         column = _with_type_log(folder, meta, manifest, column)
-    planes = field_planes(meta)
+    model = field_planes(meta) if planes else ()
     frames = []
     for row in manifest.itertuples(index=False):
         well = read_las(row.las)
@@ -76,7 +79,7 @@ def detect_field(folder: Path, *, tops: bool = True, curves: bool = False
         picks = read_tops(row.tops, well=well.name) if tops else None
         dip = BedDip.parse(row.dip) if getattr(row, "dip", None) else None
         frames.append(find_fault_cuts(well, column, tops=picks, trajectory=traj, bed_dip=dip,
-                                      planes=planes, unit="m",
+                                      planes=model, unit="m",
                                       curves=CurveSettings.make() if curves else None))
     cuts = pd.concat([f for f in frames if len(f)], ignore_index=True) if frames else \
         pd.DataFrame()
@@ -98,8 +101,13 @@ def _with_type_log(folder: Path, meta: dict, manifest: pd.DataFrame,
     return col.renamed(f"{column.name} with the type log of {meta['type_well']}")
 
 
-def _evidence(method: str) -> str:
-    return {"both": "tops+curves", "curves": "curves", "tops": "tops"}.get(method, method)
+def _evidence(method: str, notes: str) -> str:
+    """Which evidence found the cut and what placed its MD: ``tops+curves>F1`` = found by
+    both, placed where the mapped fault plane F1 crosses the well (inside the evidence's
+    bracket); ``curves`` = found and placed by the curves."""
+    found = {"both": "tops+curves"}.get(method, method)
+    plane = re.search(r"cut placed where fault-model plane (\S+) crosses", str(notes))
+    return f"{found}>{plane.group(1)}" if plane else found
 
 
 def run_demo(folder: Path | None = None, unit: str = "m") -> str:
@@ -112,13 +120,13 @@ def run_demo(folder: Path | None = None, unit: str = "m") -> str:
     per_m, sx, nd = 1.0 / u.metres, u.suffix, Decimals().for_length(u)
     folder = locate_field(folder)
     cuts, truth, meta = detect_field(folder, curves=True)
-    alone, _, _ = detect_field(folder, tops=False, curves=True)
+    alone, _, _ = detect_field(folder, tops=False, curves=True, planes=False)
     logged = sorted({w.get("depth_unit", "m") for w in meta["wells"]})
     lines = [f"{meta['field']} — invented demo field in {folder}",
              f"{len(meta['wells'])} wells, beds {meta['bed_dip']['text']}, fault model: "
              + ", ".join(f"{f['name']} {f['attitude']}" for f in meta["faults"]),
              "",
-             f"{'well':<7} {f'found: MD [bracket] {sx}':<30} {'placed by':<11} {'section':<9} "
+             f"{'well':<7} {f'found: MD [bracket] {sx}':<30} {'found>placed':<14} {'section':<9} "
              f"{'type':<8} {f'TST {sx}':>8} {f'VS {sx}':>8} {'crossing':<25}| "
              f"{f'truth: MD {sx}':>12} {'section':<9} {'type':<8} {f'TST {sx}':>8}"]
     wells = [w["name"] for w in meta["wells"]]
@@ -128,7 +136,7 @@ def run_demo(folder: Path | None = None, unit: str = "m") -> str:
         t = truth[truth["well"] == name]
         n = max(len(c), len(t))
         if n == 0:
-            lines.append(f"{name:<7} {'no cut':<30} {'':<11} {'':<9} {'':<8} {'':>8} {'':>8} "
+            lines.append(f"{name:<7} {'no cut':<30} {'':<14} {'':<9} {'':<8} {'':>8} {'':>8} "
                          f"{'':<25}| {'no cut':>12}")
             continue
         for k in range(n):
@@ -137,11 +145,11 @@ def run_demo(folder: Path | None = None, unit: str = "m") -> str:
                 r = c.iloc[k]
                 md, top, base = (v * per_m for v in (r.md_m, r.md_top_m, r.md_base_m))
                 left = (f"{md:.{nd}f} [{top:.{nd}f}-{base:.{nd}f}]".ljust(30)
-                        + f" {_evidence(r.method):<11} {r.section:<9} {r.fault_type:<8} "
+                        + f" {_evidence(r.method, r.notes):<14} {r.section:<9} {r.fault_type:<8} "
                         f"{r.tst_m * per_m:8.{nd}f} {r.vertical_separation_m * per_m:8.{nd}f} "
                         f"{r.crossing:<25}")
             else:
-                left = (f"{'(not found)':<30} {'':<11} {'':<9} {'':<8} {'':>8} {'':>8} "
+                left = (f"{'(not found)':<30} {'':<14} {'':<9} {'':<8} {'':>8} {'':>8} "
                         f"{'':<25}")
             if k < len(t):
                 tr = t.iloc[k]
@@ -160,9 +168,9 @@ def run_demo(folder: Path | None = None, unit: str = "m") -> str:
               f"true cuts found: {found_total} of {len(truth)}; section and fault type right: "
               f"{right} of {found_total}; cuts reported in all: {len(cuts)}",
               "Evidence used: formation tops against the reference column and the curves "
-              f"aligned to the type log of {meta['type_well']} ('placed by': tops+curves = "
-              "found by both, placed by the curves), with the field's mapped fault planes for "
-              "the crossing direction.",
+              f"aligned to the type log of {meta['type_well']}, with the field's mapped fault "
+              "planes for the attitude ('found>placed': tops+curves>F1 = found by both, placed "
+              "where plane F1 crosses the well inside their bracket).",
               f"All lengths in {sx} (wells logged in {' and '.join(logged)}; --output-unit "
               "chooses).",
               _curves_alone(alone, truth, per_m, sx, nd)]
@@ -175,7 +183,8 @@ def run_demo(folder: Path | None = None, unit: str = "m") -> str:
 
 def _curves_alone(cuts: pd.DataFrame, truth: pd.DataFrame, per_m: float = 1.0, sx: str = "m",
                   nd: int = 2) -> str:
-    """One line: what the curves find without the tops (lengths ``per_m`` per metre)."""
+    """One line: what the curves find without the tops or the fault planes, each cut placed by
+    the curves alone (lengths ``per_m`` per metre)."""
     found, errs = 0, []
     for tr in truth.itertuples(index=False):
         c = cuts[(cuts["well"] == tr.well) & (cuts["md_top_m"] - 1.0 <= tr.md_m)
@@ -185,7 +194,7 @@ def _curves_alone(cuts: pd.DataFrame, truth: pd.DataFrame, per_m: float = 1.0, s
             errs.append(abs(float(c.iloc[0].md_m) - float(tr.md_m)))
     false = len(cuts) - found
     med = f", MD error median {np.median(errs) * per_m:.{nd}f} {sx}" if errs else ""
-    return (f"Curves alone (no tops): true cuts found {found} of {len(truth)}{med}; "
+    return (f"Curves alone (no tops, no fault planes): true cuts found {found} of {len(truth)}{med}; "
             f"other cuts {false}.")
 
 
