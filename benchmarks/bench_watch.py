@@ -280,9 +280,10 @@ def print_possible(cuts: pd.DataFrame, wells: pd.DataFrame) -> None:
 
 def cost(sizes, n_samples: int = 4000) -> None:
     print(f"\nupdate cost: a vertical well of min({n_samples}, 0.8 M) samples (0.1524 m) with two "
-          "faults, fed one row at a time (and 1 m at a time), CPU ms per sample")
+          "faults, fed one row at a time (and 1 m at a time), CPU ms per sample; peer: the "
+          "same row-at-a-time feed without the break detector (breaks=False), and the ratio")
     print(f"{'type log M':>10}{'DP cols':>9}{'feed/row':>10}{'push':>8}{'rest':>8}"
-          f"{'max call ms':>12}{'feed/1 m':>10}")
+          f"{'max call ms':>12}{'feed/1 m':>10}{'no breaks':>12}{'ratio':>7}")
     for m in sizes:
         n = min(n_samples, int(0.8 * m))
         ds = 0.1524
@@ -324,10 +325,17 @@ def cost(sizes, n_samples: int = 4000) -> None:
         for i in range(0, md.size, k):
             w2.feed(md[i:i + k], x[i:i + k, None])
         cpu_b = (time.process_time() - t0) / md.size
+        # the peer: the same feed without the break detector (correlation alone)
+        w3 = WellWatcher(col, syn.trajectory, "0/0", settings=WatchSettings(breaks=False))
+        t0 = time.process_time()
+        for i in range(md.size):
+            w3.feed(md[i], [x[i]])
+        cpu_nb = (time.process_time() - t0) / md.size
         cols = w.engine._prepared()["lo_t"].shape[1]
         pu = push_cpu[0] / (md.size - 20)
         print(f"{m:>10}{cols:>9}{1e3 * cpu:>10.3f}{1e3 * pu:>8.3f}{1e3 * (cpu - pu):>8.3f}"
-              f"{1e3 * worst:>12.1f}{1e3 * cpu_b:>10.3f}", flush=True)
+              f"{1e3 * worst:>12.1f}{1e3 * cpu_b:>10.3f}{1e3 * cpu_nb:>12.3f}"
+              f"{cpu / cpu_nb:>7.2f}", flush=True)
 
 
 # ---------------------------------------------------------------------------- calibration
