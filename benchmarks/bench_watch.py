@@ -93,12 +93,14 @@ def drill(sc, settings: WatchSettings):
                     well_name=well.name)
     alerts, retracted, possible = [], [], {}
 
-    def note(events):
+    def note(events, final=False):
         for e in events:
+            if e.kind == "cut" and e.possible is not None:
+                possible[e.cut_id]["confirmed"] = e.bit_md_m
+            if final and e.kind != "possible_cut":
+                continue            # the whole-well check's changes are not alerts
             if e.kind == "cut":
                 alerts.append((e.cut_id, e.bit_md_m, e.cut))
-                if e.possible is not None:
-                    possible[e.cut_id]["confirmed"] = e.bit_md_m
             elif e.kind == "cut-revised" and e.change == "retracted":
                 retracted.append(e.cut_id)
             elif e.kind == "possible_cut" and e.possible.status == "raised":
@@ -113,7 +115,7 @@ def drill(sc, settings: WatchSettings):
     cpu = time.process_time() - t_cpu
     standing = list(w.cuts)
     fin = w.finish(reconcile=True)
-    note(fin)
+    note(fin, final=True)
     final_ok = None
     if w.final_cuts is not None:
         final = [c for c in w.cuts]
@@ -180,6 +182,7 @@ def _accuracy_one(args):
                 retractions=len(res["retracted"]), batch=len(batch), batch_matched=len(bh),
                 live_only=len(live_only), final_ok=res["final_ok"],
                 p_raised=len(pcs), p_false=len(p_false),
+                p_true_withdrawn=sum(1 for q in warned_true if pcs[q]["withdrawn"] is not None),
                 p_confirmed=sum(p["confirmed"] is not None for p in pcs),
                 p_false_withdraw=[(p["withdrawn"] - p["md"]) if p["withdrawn"] is not None
                                   else np.inf for p in p_false],
@@ -275,7 +278,9 @@ def print_possible(cuts: pd.DataFrame, wells: pd.DataFrame) -> None:
           f"the correlation; false warnings (no true cut within {POSSIBLE_TOL_M:g} m): "
           f"{wells.p_false.sum()} on {km:.1f} km of hole = {wells.p_false.sum() / km:.3f} per "
           f"km; withdrawn within 50 m of hole: {int(np.sum(dist <= 50.0))}/{dist.size} "
-          f"(largest {np.max(dist) if dist.size else np.nan:.1f} m)")
+          f"(largest {np.max(dist) if dist.size else np.nan:.1f} m); warnings at a true cut "
+          f"withdrawn (the correlation had not raised it in time): "
+          f"{wells.p_true_withdrawn.sum()}")
 
 
 def cost(sizes, n_samples: int = 4000) -> None:

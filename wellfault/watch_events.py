@@ -71,7 +71,8 @@ class WatchSettings:
     possible_match_m : a cut raised by the correlation within this MD of a possible cut
         confirms it (same identifier).
     possible_catchup_m, possible_withdraw_m : a possible cut the correlation has not confirmed
-        is withdrawn once this much strat [m TST], or this much hole, is drilled below it.
+        is withdrawn once this much strat [m TST], or this much hole, is drilled below it and
+        the correlation's path has no jump near it.
     """
 
     confirm_rows: int = 4
