@@ -151,6 +151,12 @@ def test_possible_cut_event_schema(sidetrack_run):
         assert d[f"break_md_{u}"] == pytest.approx(e.possible.break_md_m / k)
         assert d["evidence"]["curve"] == "GR" and 0.0 < d["confidence"] < 1.0
         assert abs(d["evidence"]["observed_sharpness"]) > d["evidence"]["expected_sharpness"]
+    # the example in README.md has exactly these fields
+    text = (ROOT / "README.md").read_text()
+    k0 = text.index('{"event": "possible_cut"')
+    example = json.loads(text[k0:text.index("```", k0)])
+    assert set(example) == set(e.to_dict("m")) and \
+        set(example["evidence"]) == set(e.to_dict("m")["evidence"])
     cut = next(x for x in events if x.kind == "cut" and x.cut_id == e.cut_id).to_dict("ft")
     assert cut["possible_cut"]["break_md_ft"] == pytest.approx(e.possible.break_md_m / 0.3048)
     assert set(cut["possible_cut"]) == {"break_md_ft", "raised_bit_md_ft"}

@@ -8,8 +8,10 @@ It follows a LAS or CSV file that grows as the well is drilled (or rows on stand
 readable lines — the bit's MD, TVD, unit and stratigraphic position every ``--print-every`` of
 new hole, each fault cut as it is raised (and any revision or retraction) with the re-forecast
 of the tops still to come — or, with ``--jsonl``, one JSON object per line (events ``update`` at
-most once per metre of new hole, ``cut``, ``cut-revised``, ``forecast``, ``notice``,
-``summary``; see :class:`~wellfault.watch.WatchEvent`). The caution and what was done about
+most once per metre of new hole, ``cut``, ``cut-revised``, ``possible_cut``, ``forecast``,
+``notice``, ``summary``; see :class:`~wellfault.watch.WatchEvent`). A possible cut (a break of
+the log much sharper than the type log predicts, :mod:`wellfault.watch_breaks`) is a line
+starting ``??? POSSIBLE FAULT CUT``, with the tops ahead in both cases while it stands. The caution and what was done about
 problems in the feed go to stderr. With ``--once`` it stops at the end of the input; otherwise
 it polls the file every ``--poll`` seconds until Ctrl-C, which ends cleanly (exit 0) with the
 whole-well check and a summary.

@@ -156,7 +156,7 @@ class PossibleCuts:
                 expected=brk.expected * float(self._scale[c]),
                 noise=brk.noise * float(self._scale[c]), ratio=brk.ratio, excess=brk.excess,
                 confidence=break_confidence(brk.excess, brk.ratio),
-                side_m=float(md[b + side - 1] - md[b]) if side > 1 else 0.0, r=r,
+                side_m=float(md[b + side - 1] - md[b - side]) * side / (2 * side - 1), r=r,
                 s_above_m=self._s0 + anchor * self._ds)
             self._next_id += 1
             self._separation(pc, jumps)
