@@ -36,8 +36,17 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-__all__ = ["noise_sigma", "find_breaks", "assess_break", "Break", "PossibleCut",
-           "break_confidence", "CONFIDENCE_COEF", "POSSIBLE_STATUSES"]
+__all__ = [
+    "CONFIDENCE_COEF",
+    "POSSIBLE_STATUSES",
+    "Break",
+    "PossibleCut",
+    "assess_break",
+    "break_confidence",
+    "find_breaks",
+    "noise_sigma",
+    "read_along",
+]
 
 #: ``status`` of a possible cut: standing, confirmed by the correlation (a ``cut`` event with
 #: the same identifier), or withdrawn.
@@ -86,7 +95,7 @@ def find_breaks(z: np.ndarray, penalty: float, min_size: int) -> np.ndarray:
     return np.asarray(bk[:-1], dtype=np.int64)
 
 
-def _read(ref_t: np.ndarray, pos: np.ndarray) -> np.ndarray:
+def read_along(ref_t: np.ndarray, pos: np.ndarray) -> np.ndarray:
     """Type log (C, M) at float reference positions (any shape), linear, ends held."""
     m = ref_t.shape[1]
     q = np.clip(pos, 0.0, m - 1.0)
@@ -126,7 +135,7 @@ def assess_break(z: np.ndarray, b: int, side: int, pos: np.ndarray, ref_t: np.nd
     lo, hi = b - side, b + side
     obs = np.nanmean(z[b:hi], axis=0) - np.nanmean(z[lo:b], axis=0)            # (C,)
     deltas = np.arange(-int(tolerance), int(tolerance) + 1, dtype=float)
-    y = _read(ref_t, pos[lo:hi][None, :] + deltas[:, None])                    # (C, D, 2s)
+    y = read_along(ref_t, pos[lo:hi][None, :] + deltas[:, None])               # (C, D, 2s)
     exp_steps = y[:, :, side:].mean(axis=2) - y[:, :, :side].mean(axis=2)      # (C, D)
     expected = np.max(np.abs(exp_steps), axis=1)
     noise = sigma * math.sqrt(2.0 / side)

@@ -100,7 +100,10 @@ Modules
 -------
 :mod:`wellfault.watch_events` holds the settings, events and bit state; :mod:`wellfault.watch_path`
 the path ahead of the bit (survey continued by the plan) and the forecast's crossing search;
-:mod:`wellfault.livefeed` reads a growing file; this module re-exports the public names.
+:mod:`wellfault.livefeed` reads a growing file; :mod:`wellfault.watch_breaks` (mixed in) raises,
+confirms and withdraws *possible cuts* — breaks of the log much sharper than the type log
+predicts along the path (:mod:`wellfault.breaks`), an early warning in high-angle wells; this
+module re-exports the public names.
 
 Coupling with the engine
 ------------------------

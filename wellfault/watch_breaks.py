@@ -9,8 +9,9 @@ continued by the predicted strat increment of every sample. A break much sharper
 (``break_min_excess``, ``break_min_ratio``) where the path drills at most ``break_max_r`` m of
 strat per metre of hole, while the well correlates with the type log along the traced tail at
 ``break_min_correlation`` or more (else the predicted path, and so the expectation, is not to
-be trusted) and once the well's curves are calibrated (as for cuts), is raised as a *possible cut* (event ``possible_cut``, status
-``raised``), unless a cut or possible cut already stands within ``possible_match_m``.
+be trusted) and once the well's curves are calibrated (as for cuts), is raised as a
+*possible cut* (event ``possible_cut``, status ``raised``), unless a cut or possible cut
+already stands within ``possible_match_m``.
 
 A possible cut never enters the cut table. It is
 
@@ -37,10 +38,17 @@ import math
 
 import numpy as np
 
-from .breaks import PossibleCut, assess_break, break_confidence, find_breaks, noise_sigma
+from .breaks import (
+    PossibleCut,
+    assess_break,
+    break_confidence,
+    find_breaks,
+    noise_sigma,
+    read_along,
+)
 from .watch_events import WatchEvent
 
-__all__ = ["PossibleCuts", "SEPARATION_SEARCH_M"]
+__all__ = ["SEPARATION_SEARCH_M", "PossibleCuts"]
 
 #: Largest separation [m TST] tried when matching the hole below a break to the type log.
 SEPARATION_SEARCH_M = 150.0
@@ -59,7 +67,7 @@ class PossibleCuts:
     def _side_samples(self) -> int:
         step = self._nominal if self._nominal > 0 else float(np.median(np.diff(
             self._md.a[max(0, self._n - 32): self._n]))) if self._n > 2 else 0.1524
-        return max(3, int(round(self.settings.break_side_m / max(step, 1e-6))))
+        return max(3, round(self.settings.break_side_m / max(step, 1e-6)))
 
     def _position_of(self, tail, i: int) -> float | None:
         """The correlation's position of sample ``i`` [reference samples] (None outside the
@@ -122,7 +130,7 @@ class PossibleCuts:
         found = find_breaks(z / sigma, s.break_penalty, max(2, side // 2)) + i0
         raised = False
         corr = float(tail.alignment.correlation)
-        tol = int(round(s.break_tolerance_m / self._ds))
+        tol = round(s.break_tolerance_m / self._ds)
         ref_t = self.engine._prepared()["ref_t"]
         for b in found:
             b = int(b)
@@ -209,11 +217,9 @@ class PossibleCuts:
         pos = self._predicted(anchor, a, b, hi)[ok]
         z = z[ok]
         kmax = int(SEPARATION_SEARCH_M / self._ds)
-        kmin = max(1, int(math.ceil(self.curve_settings.min_jump_m / self._ds)))
+        kmin = max(1, math.ceil(self.curve_settings.min_jump_m / self._ds))
         shifts = np.r_[-np.arange(kmin, kmax + 1), np.arange(kmin, kmax + 1)].astype(float)
-        from .breaks import _read
-
-        y = _read(self.engine._prepared()["ref_t"], pos[None, :] + shifts[:, None])  # C,S,k
+        y = read_along(self.engine._prepared()["ref_t"], pos[None, :] + shifts[:, None])  # C,S,k
         w = np.asarray(self.engine._prepared()["w"], float)
         mis = np.einsum("c,csk->s", w, (y - z.T[:, None, :]) ** 2)
         m = self.engine._prepared()["ref_t"].shape[1]
