@@ -24,9 +24,19 @@ Reported:
   (2,000 / 5,000 / 10,000 samples), split into the engine's push and the rest, with the largest
   single call (wall; the calibration re-runs), and the same fed 1 m at a time.
 
-Goals (watch issue): latency median <= 10 m and 90th percentile <= 20 m for |Δs| >= 10 m;
-update <= 1 ms per sample with a 10,000-sample type log; after the whole well, the same cuts as
-the batch command.
+* possible cuts (the break detector, :mod:`wellfault.watch_breaks`) on the same wells: the cuts
+  |Δs| >= 20 m warned of (a possible cut within 10 m of MD), warned before the correlation's
+  alert, the latency in hole and strat by r band; false warnings per km of hole and how far
+  below their break they were withdrawn; and the update cost against the same feed without
+  the detector (the peer, and the ratio).
+
+Goals (issue 13, restated): latency in strat (hole x r) median <= 5 m, p90 <= 12 m for
+|Δs| >= 10 m; in hole p90 <= 20 m where |r| >= 0.7; no alert before the cut; at most 1 in 10
+cuts missed (listed). Possible cuts in high-angle wells (|r| < 0.4), |Δs| >= 20 m: latency p90
+<= 20 m of hole, >= 80 % warned before the correlation's alert; false warnings <= 0.3 per km,
+each withdrawn within 50 m of hole; update <= 1 ms per sample (p50); the correlation's figures
+unchanged. ``--calibrate-breaks`` scores the possible-cut rule on calibration wells (seeds
+10000+), fits its confidence and prints how many high-angle cuts show a break at all.
 
 What sets the latency: the alert needs enough stratigraphy drilled below the cut for the type
 log to tell the fault's two positions apart — a few metres of strat where the log has
@@ -46,6 +56,7 @@ a test.
 from __future__ import annotations
 
 import argparse
+import itertools
 import os
 import platform
 import sys
@@ -63,6 +74,8 @@ from wellfault.watch import WatchSettings, WellWatcher
 
 REF = Path(os.environ.get("WELLFAULT_REFERENCE_DATA",
                           Path(__file__).resolve().parents[2] / "shared" / "reference_data"))
+#: A possible cut whose break lies within this MD of a true cut warned of it.
+POSSIBLE_TOL_M = 10.0
 BANDS = [(2.0, 5.0), (5.0, 10.0), (10.0, 20.0), (20.0, 40.0), (40.0, np.inf)]
 
 
@@ -88,17 +101,31 @@ def drill(sc, settings: WatchSettings):
     x = well.curves["GR"].to_numpy(float)
     w = WellWatcher(sc.column, sc.trajectory, sc.bed_dip, settings=settings,
                     well_name=well.name)
-    alerts, retracted = [], []
-    t_cpu = time.process_time()
-    for i in range(md.size):
-        for e in w.feed(md[i], [x[i]]):
+    alerts, retracted, possible = [], [], {}
+
+    def note(events, final=False):
+        for e in events:
+            if e.kind == "cut" and e.possible is not None:
+                possible[e.cut_id]["confirmed"] = e.bit_md_m
+            if final and e.kind != "possible_cut":
+                continue            # the whole-well check's changes are not alerts
             if e.kind == "cut":
                 alerts.append((e.cut_id, e.bit_md_m, e.cut))
             elif e.kind == "cut-revised" and e.change == "retracted":
                 retracted.append(e.cut_id)
+            elif e.kind == "possible_cut" and e.possible.status == "raised":
+                possible[e.cut_id] = dict(md=e.possible.break_md_m, bit=e.bit_md_m,
+                                          withdrawn=None, confirmed=None)
+            elif e.kind == "possible_cut":
+                possible[e.cut_id]["withdrawn"] = e.bit_md_m
+
+    t_cpu = time.process_time()
+    for i in range(md.size):
+        note(w.feed(md[i], [x[i]]))
     cpu = time.process_time() - t_cpu
     standing = list(w.cuts)
     fin = w.finish(reconcile=True)
+    note(fin, final=True)
     final_ok = None
     if w.final_cuts is not None:
         final = [c for c in w.cuts]
@@ -108,7 +135,7 @@ def drill(sc, settings: WatchSettings):
                                                       conf["md_m"].sort_values()))
     del fin
     return dict(md=md, alerts=alerts, retracted=retracted, standing=standing, cpu=cpu,
-                final_ok=final_ok)
+                final_ok=final_ok, possible=list(possible.values()))
 
 
 def match(truth: pd.DataFrame, cuts, tol_m: float = 10.0):
@@ -137,12 +164,21 @@ def _accuracy_one(args):
     cuts = [a[2] for a in res["alerts"]]
     hit, false = match(truth, cuts)
     rows = []
+    pcs = res["possible"]
+    warned_true = set()
     for k, t in truth.iterrows():
         qk = hit.get(k)
         lat = res["alerts"][qk][1] - t["md_first_below_m"] if qk is not None else np.nan
+        near = [q for q, p in enumerate(pcs) if abs(p["md"] - t["md_m"]) <= POSSIBLE_TOL_M]
+        warned_true.update(near)
+        p_bit = min((pcs[q]["bit"] for q in near), default=np.nan)
         rows.append(dict(column=label, seed=seed, kind=sc.kind, ds=abs(t["delta_s_m"]),
                          r=abs(t["r"]), latency=lat, found=qk is not None,
-                         retracted=qk is not None and res["alerts"][qk][0] in res["retracted"]))
+                         retracted=qk is not None and res["alerts"][qk][0] in res["retracted"],
+                         p_latency=p_bit - t["md_first_below_m"],
+                         p_before=bool(np.isfinite(p_bit) and (qk is None or
+                                                               p_bit < res["alerts"][qk][1]))))
+    p_false = [p for q, p in enumerate(pcs) if q not in warned_true]
     batch = find_cuts_from_curves(sc.well, column, sc.trajectory, bed_dip=sc.bed_dip,
                                   settings=CurveSettings()).cuts
     batch = [c for c in batch if c.confidence >= settings.min_confidence]
@@ -155,9 +191,15 @@ def _accuracy_one(args):
                                    not in res["retracted"]),
                 retractions=len(res["retracted"]), batch=len(batch), batch_matched=len(bh),
                 live_only=len(live_only), final_ok=res["final_ok"],
+                p_raised=len(pcs), p_false=len(p_false),
+                p_true_withdrawn=sum(1 for q in warned_true if pcs[q]["withdrawn"] is not None),
+                p_confirmed=sum(p["confirmed"] is not None for p in pcs),
+                p_false_withdraw=[(p["withdrawn"] - p["md"]) if p["withdrawn"] is not None
+                                  else np.inf for p in p_false],
                 cpu_per_sample_ms=1e3 * res["cpu"] / res["md"].size,
                 line=f"  {label:<10} seed {seed:4d} {sc.kind:<10} {len(truth)} cut(s), "
-                     f"{len(cuts)} alert(s), {len(false)} false, batch {len(bh)}/{len(batch)} "
+                     f"{len(cuts)} alert(s), {len(false)} false, {len(pcs)} possible "
+                     f"({len(p_false)} false), batch {len(bh)}/{len(batch)} "
                      f"matched, {1e3 * res['cpu'] / res['md'].size:.2f} ms/sample")
     return rows, well
 
@@ -205,6 +247,12 @@ def print_accuracy(cuts: pd.DataFrame, wells: pd.DataFrame) -> None:
     # metre drilled, so the hole needed to see a cut grows as 1/r
     for lo, hi in ((0.7, 1.01), (0.4, 0.7), (0.2, 0.4), (0.0, 0.2)):
         line(f"|Δs| >= 10 m, r {lo:g}-{min(hi, 1):g}", big[(big.r >= lo) & (big.r < hi)])
+    early = big[big.found & (big.latency <= 0)]
+    print(f"\nalerts at or above the true cut (|Δs| >= 10 m): {len(early)}")
+    missed = big[~big.found]
+    print(f"missed cuts |Δs| >= 10 m: {len(missed)} of {len(big)}"
+          + "".join(f"\n  {m.column:<10} seed {m.seed:4d} {m.kind:<10} |Δs| {m.ds:5.1f} m, "
+                    f"r {m.r:.2f}" for m in missed.itertuples()))
     km = wells.km.sum()
     print(f"\nfalse alerts: {wells.false.sum()} on {len(wells)} wells ({km:.1f} km of hole): "
           f"{wells.false.sum() / len(wells):.3f} per well, {wells.false.sum() / km:.3f} per km; "
@@ -215,17 +263,48 @@ def print_accuracy(cuts: pd.DataFrame, wells: pd.DataFrame) -> None:
           f"{wells.live_only.sum()} alert(s) not in the batch table; after the whole-well "
           f"check: {int(wells.final_ok.fillna(False).sum())}/{len(wells)} wells hold exactly "
           "the batch cuts")
+    print_possible(cuts, wells)
     sizes = {k: len(c.type_log) for k, c in _columns().items()}
     print(f"feed cost on these wells: median {wells.cpu_per_sample_ms.median():.3f} ms/sample, "
           f"90th percentile {q(wells.cpu_per_sample_ms, 90):.3f} (CPU, one row at a time; type "
           f"logs of {', '.join(f'{k} {v}' for k, v in sizes.items())} samples)")
 
 
+def print_possible(cuts: pd.DataFrame, wells: pd.DataFrame) -> None:
+    """The break detector's figures, from the same wells as the correlation's."""
+    print("\npossible cuts (breaks much sharper than the type log predicts): latency in metres "
+          "of new hole from the true cut to the possible_cut event (and x r: strat)")
+    print(f"{'subset':<30}{'cuts':>6}{'warned':>8}{'before':>8}{'median m':>10}{'p90 m':>8}"
+          f"{'TST med':>9}{'TST p90':>9}")
+    big = cuts[cuts.ds >= 20]
+
+    def line(name, d):
+        w = d[np.isfinite(d.p_latency)]
+        print(f"{name:<30}{len(d):>6}{np.isfinite(d.p_latency).mean() if len(d) else np.nan:>8.2f}"
+              f"{d.p_before.mean() if len(d) else np.nan:>8.2f}{q(w.p_latency, 50):>10.1f}"
+              f"{q(w.p_latency, 90):>8.1f}{q(w.p_latency * w.r, 50):>9.1f}"
+              f"{q(w.p_latency * w.r, 90):>9.1f}")
+
+    line("|Δs| >= 20 m", big)
+    for lo, hi in ((0.7, 1.01), (0.4, 0.7), (0.2, 0.4), (0.0, 0.2), (0.0, 0.4)):
+        line(f"|Δs| >= 20 m, r {lo:g}-{min(hi, 1):g}", big[(big.r >= lo) & (big.r < hi)])
+    km = wells.km.sum()
+    dist = np.array([d for v in wells.p_false_withdraw for d in v], float)
+    print(f"possible cuts: {wells.p_raised.sum()} raised, {wells.p_confirmed.sum()} confirmed by "
+          f"the correlation; false warnings (no true cut within {POSSIBLE_TOL_M:g} m): "
+          f"{wells.p_false.sum()} on {km:.1f} km of hole = {wells.p_false.sum() / km:.3f} per "
+          f"km; withdrawn within 50 m of hole: {int(np.sum(dist <= 50.0))}/{dist.size} "
+          f"(largest {np.max(dist) if dist.size else np.nan:.1f} m); warnings at a true cut "
+          f"withdrawn (the correlation had not raised it in time): "
+          f"{wells.p_true_withdrawn.sum()}")
+
+
 def cost(sizes, n_samples: int = 4000) -> None:
     print(f"\nupdate cost: a vertical well of min({n_samples}, 0.8 M) samples (0.1524 m) with two "
-          "faults, fed one row at a time (and 1 m at a time), CPU ms per sample")
+          "faults, fed one row at a time (and 1 m at a time), CPU ms per sample; peer: the "
+          "same row-at-a-time feed without the break detector (breaks=False), and the ratio")
     print(f"{'type log M':>10}{'DP cols':>9}{'feed/row':>10}{'push':>8}{'rest':>8}"
-          f"{'max call ms':>12}{'feed/1 m':>10}")
+          f"{'max call ms':>12}{'feed/1 m':>10}{'no breaks':>12}{'ratio':>7}")
     for m in sizes:
         n = min(n_samples, int(0.8 * m))
         ds = 0.1524
@@ -267,10 +346,17 @@ def cost(sizes, n_samples: int = 4000) -> None:
         for i in range(0, md.size, k):
             w2.feed(md[i:i + k], x[i:i + k, None])
         cpu_b = (time.process_time() - t0) / md.size
+        # the peer: the same feed without the break detector (correlation alone)
+        w3 = WellWatcher(col, syn.trajectory, "0/0", settings=WatchSettings(breaks=False))
+        t0 = time.process_time()
+        for i in range(md.size):
+            w3.feed(md[i], [x[i]])
+        cpu_nb = (time.process_time() - t0) / md.size
         cols = w.engine._prepared()["lo_t"].shape[1]
         pu = push_cpu[0] / (md.size - 20)
         print(f"{m:>10}{cols:>9}{1e3 * cpu:>10.3f}{1e3 * pu:>8.3f}{1e3 * (cpu - pu):>8.3f}"
-              f"{1e3 * worst:>12.1f}{1e3 * cpu_b:>10.3f}", flush=True)
+              f"{1e3 * worst:>12.1f}{1e3 * cpu_b:>10.3f}{1e3 * cpu_nb:>12.3f}"
+              f"{cpu / cpu_nb:>7.2f}", flush=True)
 
 
 # ---------------------------------------------------------------------------- calibration
@@ -372,6 +458,148 @@ def calibrate(n_inv: int, n_real: int, jump_penalty, procs: int) -> None:
                       f"{q(lat, 50):>10.1f}{q(lat, 90):>8.1f}{false:>7d}  {kinds}", flush=True)
 
 
+def _log_breaks(args):
+    """Drill one calibration well logging every break the possible-cut rule judges."""
+    label, seed, kinds = args
+    column = _columns()[label]
+    log = []
+
+    class Logger(WellWatcher):
+        def _is_possible_cut(self, brk, r, corr, break_md):
+            log.append(dict(md=break_md, bit=float(self._md.a[self._n - 1]), r=r, corr=corr,
+                            excess=brk.excess, ratio=brk.ratio, cal=self._calibrated))
+            return False
+
+    sc = random_scenario(seed, column, kinds=kinds)
+    md = sc.well.curves.index.to_numpy(float)
+    x = sc.well.curves["GR"].to_numpy(float)
+    w = Logger(sc.column, sc.trajectory, sc.bed_dip)
+    for i in range(md.size):
+        w.feed(md[i], [x[i]])
+    truth = [t for t in sc.truth.to_dict("records") if abs(t["delta_s_m"]) >= 2.0]
+    return dict(truth=truth, log=log, km=(md[-1] - md[0]) / 1000.0)
+
+
+def calibrate_breaks(n_wells: int, procs: int, saved: str | None = None) -> None:
+    """Score possible-cut rules (excess, ratio, correlation) on calibration wells (10000+), and
+    fit the confidence (logistic) of the breaks the default rule passes. ``saved``: a pickle
+    of the judged breaks, written on the first run and read on the next."""
+    import pickle
+    from multiprocessing import Pool
+
+    if saved and Path(saved).is_file():
+        with open(saved, "rb") as f:
+            runs = pickle.load(f)
+        score_break_rules(runs)
+        return
+
+    from wellfault.scenarios import TRAJECTORY_KINDS
+
+    labs = [lab for lab in CAL_SEEDS if lab in _columns()]
+    # every kind of well (for the false warnings), and as many high-angle ones (the goal)
+    jobs = [(lab, CAL_SEEDS[lab] + 500 + k, TRAJECTORY_KINDS) for lab in labs
+            for k in range(n_wells)]
+    jobs += [(lab, CAL_SEEDS[lab] + 700 + k, ("high-angle",)) for lab in labs
+             for k in range(n_wells)]
+    with Pool(procs) as pool:
+        runs = pool.map(_log_breaks, jobs, chunksize=1)
+    if saved:
+        with open(saved, "wb") as f:
+            pickle.dump(runs, f)
+    score_break_rules(runs)
+
+
+def score_break_rules(runs) -> None:
+    km = sum(r["km"] for r in runs)
+    n_big = sum(1 for run in runs for t in run["truth"]
+                if abs(t["delta_s_m"]) >= 20 and abs(t["r"]) < 0.4)
+    print(f"break calibration: {len(runs)} wells, {km:.1f} km, {n_big} cuts |Δs| >= 20 m at "
+          "|r| < 0.4, "
+          f"{sum(len(r['log']) for r in runs)} breaks judged (seeds 10000+)")
+    print(f"{'excess >=':>10}{'ratio >=':>9}{'corr >=':>7}{'cal':>6}{'warned':>8}{'p90 m':>7}"
+          f"{'false/km':>9}   (breaks where r <= {WatchSettings().break_max_r:g})")
+    rmax = WatchSettings().break_max_r
+    for ex, ra, cmin, cal in itertools.product((4.0, 5.0, 6.0), (1.5, 2.0), (0.0, 0.7, 0.8),
+                                               (False, True)):
+        warned, lat, false = 0, [], 0
+        n_big = 0
+        for run in runs:
+            ok = [e for e in run["log"] if e["excess"] >= ex and e["ratio"] >= ra
+                  and e["r"] <= rmax and e["corr"] >= cmin and (e["cal"] or not cal)]
+            used = set()
+            for t in run["truth"]:
+                near = [q for q, e in enumerate(ok)
+                        if abs(e["md"] - t["md_m"]) <= POSSIBLE_TOL_M]
+                used.update(near)
+                if abs(t["delta_s_m"]) >= 20 and abs(t["r"]) < 0.4:
+                    n_big += 1
+                    if near:
+                        warned += 1
+                        lat.append(min(ok[q]["bit"] for q in near)
+                                   - t["md_first_below_m"])
+            rest = sorted(e["md"] for q, e in enumerate(ok) if q not in used)
+            false += sum(1 for i, m in enumerate(rest)
+                         if i == 0 or m - rest[i - 1] > POSSIBLE_TOL_M)
+        print(f"{ex:>10.1f}{ra:>9.2f}{cmin:>7.1f}{'yes' if cal else 'no':>6}"
+              f"{warned / max(n_big, 1):>8.2f}"
+              f"{q(lat, 90):>7.1f}{false / km:>9.3f}", flush=True)
+    fit_break_confidence(runs)
+    break_ceiling()
+
+
+def break_ceiling(n_wells: int = 200, side: int = 7) -> None:
+    """How many high-angle cuts (|r| < 0.4, |Δs| >= 20 m) show a break at all: the step of the
+    logged GR over ``side`` samples either side of the true cut (forward model, no detector)
+    against the noise of that step, on calibration wells (seeds 10000+, high-angle only)."""
+    print(f"\nbreak ceiling: the 1 m step across each true cut |Δs| >= 20 m, |r| < 0.4, in noise "
+          f"SDs of the step ({n_wells} high-angle wells per column, seeds 10000+)")
+    for lab in ("invented", "invented2"):
+        z = []
+        for k in range(n_wells):
+            sc = random_scenario(CAL_SEEDS[lab] + k, _columns()[lab], kinds=("high-angle",))
+            md = sc.well.curves.index.to_numpy(float)
+            x = sc.well.curves["GR"].to_numpy(float)
+            for t in sc.truth.itertuples():
+                if abs(t.delta_s_m) >= 20 and abs(t.r) < 0.4:
+                    b = int(np.searchsorted(md, t.md_m))
+                    step = x[b:b + side].mean() - x[b - side:b].mean()
+                    z.append(abs(step) / (5.0 * np.sqrt(2.0 / side)))   # GR noise 5 API
+        z = np.array(z)
+        print(f"  {lab:<10} {z.size} cuts: step >= 3 / 4 / 5 / 6 SDs: "
+              + " / ".join(f"{np.mean(z >= v):.2f}" for v in (3, 4, 5, 6)))
+
+
+def fit_break_confidence(runs) -> None:
+    """Logistic fit of P(true cut within POSSIBLE_TOL_M) on log1p(excess), log(ratio), over the
+    breaks the default rule passes (maximum likelihood with a small ridge, scipy)."""
+    from scipy.optimize import minimize
+
+    st = WatchSettings()
+    feats, label = [], []
+    for run in runs:
+        for e in run["log"]:
+            if e["r"] <= st.break_max_r and e["excess"] >= st.break_min_excess and \
+                    e["ratio"] >= st.break_min_ratio and e["corr"] >= st.break_min_correlation \
+                    and e["cal"]:
+                feats.append((1.0, np.log1p(max(e["excess"], 0.0)), np.log(max(e["ratio"],
+                                                                                 1e-9))))
+                label.append(any(abs(e["md"] - t["md_m"]) <= POSSIBLE_TOL_M
+                                 for t in run["truth"]))
+    X, y = np.array(feats), np.array(label, float)
+    if y.sum() < 3 or y.sum() > y.size - 3:
+        print("confidence fit: too few breaks of one kind")
+        return
+
+    def nll(b):
+        t = X @ b
+        return float(np.sum(np.logaddexp(0.0, t) - y * t)) + 1e-3 * float(b @ b)
+
+    b = minimize(nll, np.zeros(3), method="BFGS").x
+    print(f"confidence fit on the {y.size} breaks the default rule passes "
+          f"({int(y.sum())} at true cuts): CONFIDENCE_COEF = "
+          f"({b[0]:.2f}, {b[1]:.2f}, {b[2]:.2f})")
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--wells", type=int, default=30,
@@ -382,10 +610,17 @@ def main() -> None:
     ap.add_argument("--calibrate", action="store_true",
                     help="score alert rules on calibration wells (seeds 10000+) and stop")
     ap.add_argument("--jump-penalty", type=float, help="live engine jump penalty (calibrate)")
+    ap.add_argument("--calibrate-breaks", action="store_true",
+                    help="score possible-cut rules on calibration wells (seeds 10000+) and stop")
+    ap.add_argument("--saved", metavar="FILE.pkl",
+                    help="--calibrate-breaks: keep the judged breaks there (re-scored if present)")
     ap.add_argument("--procs", type=int, default=2)
     a = ap.parse_args()
     if a.calibrate:
         calibrate(a.wells, a.real_wells, a.jump_penalty, a.procs)
+        return
+    if a.calibrate_breaks:
+        calibrate_breaks(a.wells, a.procs, a.saved)
         return
     print(f"bench_watch on {platform.platform()}, {os.cpu_count()} CPUs, Python "
           f"{sys.version.split()[0]}; load average {os.getloadavg()[0]:.1f}")

@@ -8,8 +8,10 @@ It follows a LAS or CSV file that grows as the well is drilled (or rows on stand
 readable lines — the bit's MD, TVD, unit and stratigraphic position every ``--print-every`` of
 new hole, each fault cut as it is raised (and any revision or retraction) with the re-forecast
 of the tops still to come — or, with ``--jsonl``, one JSON object per line (events ``update`` at
-most once per metre of new hole, ``cut``, ``cut-revised``, ``forecast``, ``notice``,
-``summary``; see :class:`~wellfault.watch.WatchEvent`). The caution and what was done about
+most once per metre of new hole, ``cut``, ``cut-revised``, ``possible_cut``, ``forecast``,
+``notice``, ``summary``; see :class:`~wellfault.watch.WatchEvent`). A possible cut (a break of
+the log much sharper than the type log predicts, :mod:`wellfault.watch_breaks`) is a line
+starting ``??? POSSIBLE FAULT CUT``, with the tops ahead in both cases while it stands. The caution and what was done about
 problems in the feed go to stderr. With ``--once`` it stops at the end of the input; otherwise
 it polls the file every ``--poll`` seconds until Ctrl-C, which ends cleanly (exit 0) with the
 whole-well check and a summary.
@@ -167,6 +169,36 @@ class _TextPrinter(_JsonPrinter):
                          + (f"  {r.note}" if r.note else ""))
         return lines
 
+    # possible cuts (breaks of the log much sharper than the type log predicts)
+    def possible_text(self, e) -> str:
+        pc, sx = e.possible, self.sx
+        if pc.status == "withdrawn":
+            return (f"??? POSSIBLE FAULT CUT {pc.cut_id} WITHDRAWN at bit MD "
+                    f"{self.L(e.bit_md_m)} {sx}: {e.message}")
+        sep = (f"; most likely {self.L(pc.delta_s_m)} {sx} TST ({pc.separation_from})"
+               if math.isfinite(pc.delta_s_m) else "")
+        return (f"??? POSSIBLE FAULT CUT {pc.cut_id} at MD {self.L(pc.break_md_m)} {sx} "
+                f"(bit MD {self.L(e.bit_md_m)} {sx}): {pc.curve} steps by {pc.observed:+.1f} "
+                f"across {self.L(pc.side_m)} {sx} of hole either side where the type log along "
+                f"the path predicts at most {pc.expected:.1f} (noise {pc.noise:.1f}); "
+                f"confidence {pc.confidence:.2f}{sep}; awaiting the correlation")
+
+    def possible_confirmed(self, pc) -> str:
+        return (f"    confirms possible fault cut {pc.cut_id} (break at MD "
+                f"{self.L(pc.break_md_m)} {self.sx}, warned at bit MD "
+                f"{self.L(pc.raised_bit_md_m)} {self.sx})")
+
+    def cases(self, case) -> list[str]:
+        nf, wf = case["no_fault"], case["with_fault"].set_index("surface")
+        sx = self.sx
+        lines = [f"    while possible fault cut {case['cut_id']} stands: tops ahead with no fault "
+                 f"/ with {self.L(case['delta_s_m'])} {sx} TST of separation:",
+                 f"      {'surface':<24} {'MD no fault':>12} {'MD fault':>12}"]
+        for r in nf.itertuples(index=False):
+            md_f = wf["md_m"].get(r.surface, math.nan) if r.surface in wf.index else math.nan
+            lines.append(f"      {str(r.surface):<24} {self.L(r.md_m):>12} {self.L(md_f):>12}")
+        return lines
+
     def emit(self, events) -> None:
         out: list[str] = []
         for e in events:
@@ -177,6 +209,10 @@ class _TextPrinter(_JsonPrinter):
             elif e.kind == "cut":
                 out.append(f"*** FAULT CUT {e.cut_id} (raised at bit MD {self.L(e.bit_md_m)} "
                            f"{self.sx}): {self.cut_text(e.cut)}")
+                if e.possible is not None:
+                    out.append(self.possible_confirmed(e.possible))
+            elif e.kind == "possible_cut":
+                out.append(self.possible_text(e))
             elif e.kind == "cut-revised":
                 what = "RETRACTED" if e.change == "retracted" else f"REVISED ({e.change})"
                 line = f"*** FAULT CUT {e.cut_id} {what} at bit MD {self.L(e.bit_md_m)} " \
@@ -186,6 +222,8 @@ class _TextPrinter(_JsonPrinter):
                 out.append(line)
             elif e.kind == "forecast":
                 out += self.forecast(e.forecast)
+                for case in e.cases:
+                    out += self.cases(case)
             elif e.kind == "notice":
                 print(f"wellfault watch: {self.text(e.message)}", file=sys.stderr, flush=True)
             elif e.kind == "summary":

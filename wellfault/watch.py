@@ -100,7 +100,10 @@ Modules
 -------
 :mod:`wellfault.watch_events` holds the settings, events and bit state; :mod:`wellfault.watch_path`
 the path ahead of the bit (survey continued by the plan) and the forecast's crossing search;
-:mod:`wellfault.livefeed` reads a growing file; this module re-exports the public names.
+:mod:`wellfault.livefeed` reads a growing file; :mod:`wellfault.watch_breaks` (mixed in) raises,
+confirms and withdraws *possible cuts* — breaks of the log much sharper than the type log
+predicts along the path (:mod:`wellfault.breaks`), an early warning in high-angle wells; this
+module re-exports the public names.
 
 Coupling with the engine
 ------------------------
@@ -138,6 +141,7 @@ from .watch_events import (
     WatchSettings,
     _frame_in_unit,
 )
+from .watch_breaks import PossibleCuts
 from .watch_path import PathCache, extend_with_plan, first_crossing
 
 if TYPE_CHECKING:
@@ -185,7 +189,7 @@ class _Live:
     retracted: bool = False
 
 
-class WellWatcher:
+class WellWatcher(PossibleCuts):
     """Fault-cut alerts and a re-forecast of the tops to come for a well being drilled.
 
     Parameters
@@ -319,6 +323,7 @@ class WellWatcher:
         self.final_cuts: pd.DataFrame | None = None
         self.n_revisions = 0
         self.n_retractions = 0
+        self._init_breaks()
 
     # ------------------------------------------------------------------ input
     def set_survey(self, trajectory: Trajectory) -> WatchEvent:
@@ -443,6 +448,8 @@ class WellWatcher:
                 return
         dropped = n - k
         self._truncate(k)
+        self._withdraw_all(m, events, f"the interval from MD {m:.2f} m was re-logged", k)
+        self._assessed = [a for a in self._assessed if a < k]
         events.append(self._notice(
             "relogged", f"a row at MD {m:.2f} m differs from the data read before (re-logged "
             f"or rewritten interval): dropped the {dropped} sample(s) from that MD down and "
@@ -720,13 +727,16 @@ class WellWatcher:
                                 f"over {n - full.row} rows of strat below (the confidence grows "
                                 "as the hole below the cut lengthens)")
             self._cands.remove(match)
-            lv = _Live(self._next_id, cut, full.ds_m, full.md)
-            self._next_id += 1
+            cut_id, pc = self._claim_id(full.md)
+            lv = _Live(cut_id, cut, full.ds_m, full.md)
             self._live.append(lv)
-            events.append(WatchEvent("cut", bit, cut_id=lv.cut_id, cut=cut))
+            events.append(WatchEvent("cut", bit, cut_id=lv.cut_id, cut=cut, possible=pc))
             changed = True
+        # possible cuts: breaks much sharper than the type log predicts (watch_breaks.py)
+        changed = self._follow_possible(jumps, events) | changed
+        changed = self._scan_breaks(tail, jumps, events) | changed
         if changed:
-            events.append(WatchEvent("forecast", bit, forecast=self._forecast_m()))
+            events.append(self._forecast_event(bit))
 
     # ------------------------------------------------------------------ results
     @property
@@ -780,12 +790,20 @@ class WellWatcher:
         return _frame_in_unit(self._forecast_m(), parse_depth_unit(
             unit if unit is not None else self.depth_unit))
 
-    def _forecast_m(self) -> pd.DataFrame:
+    def _forecast_event(self, bit: float) -> WatchEvent:
+        return WatchEvent("forecast", bit, forecast=self._forecast_m(),
+                          cases=self._forecast_cases())
+
+    def _forecast_m(self, s_bit: float | None = None) -> pd.DataFrame:
+        """The forecast frame in metres, from the bit's position, or from ``s_bit`` [m TST]
+        (the cases of a possible cut)."""
         cols = ["surface", "s_m", "md_m", "tvd_m", "tvdss_m", "md_to_go_m", "md_without_cuts_m",
                 "shift_m", "note"]
         st = self.state
         if st is None:
             return pd.DataFrame(columns=cols)
+        if s_bit is not None:
+            st = dataclasses.replace(st, s_m=float(s_bit))
         s = self.settings
         md0 = st.md_m
         end = self._plan_end if self._plan_end is not None and self._plan_end > md0 else \
@@ -849,9 +867,12 @@ class WellWatcher:
                 events.append(self._notice("final-check", f"the whole-well check could not "
                                            f"run: {err}"))
         bit = float(self._md.a[self._n - 1]) if self._n else math.nan
+        self._withdraw_all(bit, events, "end of input: no cut there"
+                           + (" in the whole-well check" if check != "not run" else ""))
         summary = {"samples": int(np.sum(~self._fill.a[: self._n])),
                    "n_cuts": len(self.cuts), "revisions": self.n_revisions,
-                   "retractions": self.n_retractions, "final_check": check}
+                   "retractions": self.n_retractions, "final_check": check,
+                   **{f"possible_cuts_{k}": v for k, v in self.n_possible.items()}}
         events.append(WatchEvent("summary", bit, state=self.state if self._n else None,
                                  forecast=self._forecast_m() if self._n else None,
                                  summary=summary, cuts=tuple(self.cuts)))
@@ -916,13 +937,13 @@ class WellWatcher:
                 continue
             c = dataclasses.replace(c, notes=c.notes + "; raised by the whole-well alignment at "
                                     "the end of input")
-            lv = _Live(self._next_id, c, c.delta_s_m, c.md_m)
-            self._next_id += 1
+            cut_id, pc = self._claim_id(c.md_m)
+            lv = _Live(cut_id, c, c.delta_s_m, c.md_m)
             self._live.append(lv)
             n_changed += 1
-            events.append(WatchEvent("cut", bit, cut_id=lv.cut_id, cut=c))
+            events.append(WatchEvent("cut", bit, cut_id=lv.cut_id, cut=c, possible=pc))
         if n_changed:
-            events.append(WatchEvent("forecast", bit, forecast=self._forecast_m()))
+            events.append(self._forecast_event(bit))
         return "agrees with the cuts raised while drilling" if not n_changed else \
             f"{n_changed} change(s) to the cuts raised while drilling"
 

@@ -23,7 +23,7 @@ from .units import DepthUnit, parse_depth_unit
 __all__ = ["WatchSettings", "WatchEvent", "BitState", "EVENT_KINDS", "REVISION_CHANGES"]
 
 #: Kinds of :class:`WatchEvent`.
-EVENT_KINDS = ("update", "cut", "cut-revised", "forecast", "notice", "summary")
+EVENT_KINDS = ("update", "cut", "cut-revised", "possible_cut", "forecast", "notice", "summary")
 #: ``change`` of a ``cut-revised`` event.
 REVISION_CHANGES = ("moved", "resized", "retracted")
 
@@ -60,6 +60,26 @@ class WatchSettings:
     null_run_m : hole without a valid value before it is reported.
     forecast_step_m, forecast_horizon_m : MD step of the forecast along the path ahead, and
         how far it looks beyond the bit when no plan is given (straight on).
+    breaks : look for abrupt breaks of the log (possible cuts, :mod:`wellfault.breaks`).
+    break_window_m, break_side_m : hole scanned for change points at each evaluation; hole
+        either side of a break over which its step (sharpness) is measured.
+    break_penalty : change-point penalty, in noise variances of each curve.
+    break_tolerance_m : strat uncertainty of the predicted path [m TST]: the expected step is
+        the largest the type log gives within it.
+    break_min_excess, break_min_ratio : a break is raised as a possible cut when its step
+        exceeds the expected by this many noise standard deviations of the step, and is at
+        least this many times the expected step.
+    break_max_r : breaks are judged only where the path drills at most this much strat per
+        metre of hole (|t·n|); at higher r bed boundaries are as sharp as faults and the
+        correlation is quick.
+    break_min_correlation : breaks are judged only while the well correlates with the type log
+        along the traced tail at least this well (the predicted path is trusted).
+    break_noise_m : hole over which each curve's noise is estimated.
+    possible_match_m : a cut raised by the correlation within this MD of a possible cut
+        confirms it (same identifier).
+    possible_catchup_m, possible_withdraw_m : a possible cut the correlation has not confirmed
+        is withdrawn once this much strat [m TST], or this much hole, is drilled below it and
+        the correlation's path has no jump near it.
     """
 
     confirm_rows: int = 4
@@ -85,11 +105,26 @@ class WatchSettings:
     null_run_m: float = 20.0
     forecast_step_m: float = 1.0
     forecast_horizon_m: float = 1000.0
+    breaks: bool = True
+    break_window_m: float = 8.0
+    break_side_m: float = 1.0
+    break_penalty: float = 30.0
+    break_tolerance_m: float = 1.0
+    break_min_excess: float = 5.0
+    break_min_ratio: float = 1.5
+    break_max_r: float = 0.4
+    break_min_correlation: float = 0.7
+    break_noise_m: float = 30.0
+    possible_match_m: float = 10.0
+    possible_catchup_m: float = 12.0
+    possible_withdraw_m: float = 45.0
 
     def __post_init__(self) -> None:
         for name in ("confirm_m", "evaluate_every_m", "update_every_m", "revise_md_m",
                      "revise_abs_m", "retract_after_m", "recheck_m", "null_run_m",
-                     "forecast_step_m", "forecast_horizon_m"):
+                     "forecast_step_m", "forecast_horizon_m", "break_window_m", "break_side_m",
+                     "break_tolerance_m", "break_noise_m", "possible_match_m",
+                     "possible_catchup_m", "possible_withdraw_m"):
             v = float(getattr(self, name))
             if not (math.isfinite(v) and v >= 0) or (name.endswith("every_m") and v <= 0) \
                     or (name == "forecast_step_m" and v <= 0):
@@ -105,6 +140,14 @@ class WatchSettings:
             raise InputError(f"live_jump_factor must be positive (got {self.live_jump_factor!r})")
         if not float(self.calibrate_growth) > 1.0:
             raise InputError("calibrate_growth must be > 1")
+        if not (float(self.break_side_m) > 0 and float(self.break_window_m)
+                >= 4 * float(self.break_side_m)):
+            raise InputError("need break_side_m > 0 and break_window_m >= 4 x break_side_m "
+                             f"(got {self.break_side_m!r}, {self.break_window_m!r})")
+        for name in ("break_penalty", "break_min_excess", "break_min_ratio", "break_max_r"):
+            if not float(getattr(self, name)) > 0:
+                raise InputError(f"watch setting {name} must be positive "
+                                 f"(got {getattr(self, name)!r})")
 
 
 @dataclass(frozen=True)
@@ -134,6 +177,10 @@ class WatchEvent:
     ``cut-revised`` also ``change`` (:data:`REVISION_CHANGES`), ``previous`` and ``message``
     (why); ``notice`` carries ``notice`` (its kind) and ``message``; ``update`` and ``summary``
     carry ``state``; ``forecast`` (and ``summary``) the forecast frame in metres.
+    ``possible_cut`` carries ``cut_id`` and ``possible`` (a :class:`wellfault.breaks.PossibleCut`,
+    ``status`` raised or withdrawn, ``message`` why withdrawn); a ``cut`` that confirms one
+    carries it too (status confirmed). While possible cuts stand, ``forecast`` carries
+    ``cases``: for each, the forecast with no fault and with its most likely separation.
     """
 
     kind: str
@@ -148,6 +195,8 @@ class WatchEvent:
     forecast: pd.DataFrame | None = None
     summary: dict = field(default_factory=dict)
     cuts: tuple = ()
+    possible: object | None = None
+    cases: tuple = ()
 
     def to_dict(self, unit: DepthUnit | str = "m", decimals: Decimals = DEFAULT_DECIMALS) -> dict:
         """JSON-ready dict; lengths in ``unit`` with the unit in the key (``bit_md_ft``); cut
@@ -177,12 +226,25 @@ class WatchEvent:
                 live = self.cut.extra.get("live") if isinstance(self.cut.extra, dict) else None
                 if live:
                     out["evidence"] = {key: _num(v) for key, v in live.items()}
+            if self.kind == "cut" and self.possible is not None:
+                out["possible_cut"] = {f"break_md_{sx}": _num(self.possible.break_md_m * k),
+                                       f"raised_bit_md_{sx}":
+                                           _num(self.possible.raised_bit_md_m * k)}
+        if self.kind == "possible_cut" and self.possible is not None:
+            out.update(_possible_dict(self.possible, u))
+            if self.message:
+                out["reason"] = self.message
         if self.kind == "notice":
             out["kind"] = self.notice
             out["message"] = self.message
         if self.kind in ("forecast", "summary") and self.forecast is not None:
-            out["surfaces"] = [{key: _num(v) for key, v in r.items()}
-                               for r in _frame_in_unit(self.forecast, u).to_dict("records")]
+            out["surfaces"] = _surfaces(self.forecast, u)
+        if self.kind == "forecast" and self.cases:
+            out["cases"] = [{"cut_id": c["cut_id"],
+                             f"break_md_{sx}": _num(c["break_md_m"] * k),
+                             f"delta_s_{sx}": _num(c["delta_s_m"] * k),
+                             "no_fault": _surfaces(c["no_fault"], u),
+                             "with_fault": _surfaces(c["with_fault"], u)} for c in self.cases]
         if self.kind == "summary":
             if self.state is not None:
                 out.update(_state_dict(self.state, u))
@@ -222,6 +284,23 @@ def _num(v):
     if v is pd.NA or v is None:
         return None
     return v
+
+
+def _surfaces(df: pd.DataFrame, u: DepthUnit) -> list[dict]:
+    return [{key: _num(v) for key, v in r.items()}
+            for r in _frame_in_unit(df, u).to_dict("records")]
+
+
+def _possible_dict(pc, u: DepthUnit) -> dict:
+    """The fields of a ``possible_cut`` event (README, "While drilling")."""
+    k, sx = 1.0 / u.metres, u.suffix
+    ev = {key: _num(v) for key, v in pc.evidence().items()}
+    ev[f"side_{sx}"] = _num(pc.side_m * k)
+    return {"cut_id": pc.cut_id, "status": pc.status,
+            f"break_md_{sx}": _num(pc.break_md_m * k),
+            f"raised_bit_md_{sx}": _num(pc.raised_bit_md_m * k),
+            "evidence": ev, "confidence": _num(pc.confidence),
+            f"delta_s_{sx}": _num(pc.delta_s_m * k), "separation_from": pc.separation_from}
 
 
 def _state_dict(st: BitState, u: DepthUnit) -> dict:
