@@ -299,8 +299,8 @@ def profile_curves(field: dict, n: int) -> None:
     man["tops"] = [str(Path(field["folder"]) / v) for v in man["tops"]]
     man["survey"] = [str(Path(field["folder"]) / v) if isinstance(v, str) and v else ""
                      for v in man["survey"].fillna("")]
-    kw = dict(type_well=column, curves=["GR"], workers=1, progress=False, fit=False,
-              neighbours=False)
+    kw = {"type_well": column, "curves": ["GR"], "workers": 1, "progress": False,
+          "fit": False, "neighbours": False}
     screen_wells(man.head(2), column, **kw)                       # compiled kernels loaded
     prof = cProfile.Profile(time.process_time)          # CPU time: the machine is shared
     prof.enable()
