@@ -340,7 +340,7 @@ def _anchors(picks, column: ReferenceColumn, inp: _Inputs) -> list[_Anchor]:
     return out
 
 
-#: engines of the last type logs and settings, with their prepared arrays (module docstring)
+#: engines of the last type logs and settings, with their prepared arrays (:func:`_engine`)
 _ENGINES: dict = {}
 
 
