@@ -15,6 +15,7 @@ curve cut of the same sense becomes one ``method="both"`` cut, placed and measur
 from __future__ import annotations
 
 import dataclasses
+import hashlib
 import math
 import warnings
 from dataclasses import dataclass
@@ -411,13 +412,33 @@ def _anchors(picks, column: ReferenceColumn, inp: _Inputs) -> list[_Anchor]:
     return out
 
 
+#: engines of the last type logs and settings, with their prepared arrays (:func:`_engine`)
+_ENGINES: dict = {}
+
+
+def _engine(ref: np.ndarray, weights: np.ndarray, kw: dict):
+    """The alignment engine for this type log and these settings, made once per process.
+
+    A field screening aligns every well to the same type log: the engine's prepared arrays
+    (standardised type log, its bounds, the calibration's coarse engines) are made for the
+    first well and reused (they depend on nothing else); a few are kept, by content."""
+    from .align import AlignmentEngine
+
+    key = (hashlib.blake2b(np.ascontiguousarray(ref).tobytes(), digest_size=16).digest(),
+           ref.shape, tuple(np.asarray(weights, float)), tuple(sorted(kw.items())))
+    engine = _ENGINES.get(key)
+    if engine is None:
+        if len(_ENGINES) >= 4:
+            _ENGINES.pop(next(iter(_ENGINES)))
+        engine = _ENGINES[key] = AlignmentEngine(ref.copy(), weights=weights, **kw)
+    return engine
+
+
 def _align(inp: _Inputs, column: ReferenceColumn, settings: CurveSettings,
            anchors: list[_Anchor]):
     """(alignment, s of every sample [m], plausible separation [m]) for the prepared inputs."""
-    from .align import AlignmentEngine
-
     kw = settings.engine_kwargs(inp.ds, column_m=inp.ref.shape[0] * inp.ds)
-    engine = AlignmentEngine(inp.ref, weights=inp.weights, **kw)
+    engine = _engine(inp.ref, inp.weights, kw)
     tol = float(settings.pick_tolerance_m) / inp.ds
     alignment = engine.align(inp.x, inp.step, anchors=[(a.sample, a.position, tol)
                                                        for a in anchors] or None)

@@ -30,6 +30,9 @@ from .misfit import _row_sum, misfit_cols
 
 FOLLOW, FAST, SLOW, JUMP, START = 0, 1, 2, 3, 4
 INF = np.inf
+_INF_BITS = np.int64(0x7FF0000000000000)        # the bits of +inf
+#: width of the column bins whose minima give a row's minimum (without the jump-size prior)
+_CHUNK = 64
 
 
 # Hot loops index slices from 0 (``x = a[off:off + m]; x[j]``), never ``a[off + j]``: with an
@@ -44,16 +47,6 @@ def _add_shifted(acc, src, so, m):
         acc[j] += s[j]
 
 
-@njit(cache=True, fastmath={"reassoc", "nsz", "nnan"})
-def _row_min(a, off, m):
-    # reassociation lets the reduction vectorise; costs hold +inf but never NaN
-    x = a[off:off + m]
-    best = np.inf
-    for j in range(m):
-        best = min(best, x[j])
-    return best
-
-
 @njit(cache=True)
 def _all_null(x):
     for c in range(x.shape[0]):
@@ -64,29 +57,48 @@ def _all_null(x):
 
 @njit(cache=True)
 def _first_index(a, off, m, value):
+    # no early exit: a minimum over the whole slice vectorises (a search stays scalar)
     x = a[off:off + m]
+    first = m
     for j in range(m):
-        if x[j] == value:
-            return j
-    return 0
+        first = min(first, j if x[j] == value else m)
+    return first if first < m else 0
 
 
 @njit(cache=True)
-def _jump_costs(F, pad, m, B, w, slope_bin, bmin, barg, out, src):
-    """Jump cost and source per column of the landing row under the binned size prior.
+def _bin_minima(F, pad, c0, c1, B, out):
+    """``out[q]``: the least cost of columns ``q·B .. q·B + B − 1`` of row ``F`` within c0..c1-1
+    (+inf for a bin outside them: the columns outside hold +inf).
+
+    Costs are sums of terms >= 0 (penalties, misfits: engine.py checks them) or +inf, and the
+    bits of such doubles order as the numbers do, so each minimum is taken over the bits as
+    integers: an integer minimum vectorises, a floating-point one stayed scalar even with
+    fast-math flags (measured 12x slower)."""
+    bits = out.view(np.int64)
+    for q in range(out.shape[0]):
+        lo, hi = max(q * B, c0), min(q * B + B, c1)
+        x = F[pad + lo:pad + hi].view(np.int64)
+        best = _INF_BITS
+        for j in range(x.shape[0]):
+            best = min(best, x[j])
+        bits[q] = best
+
+
+@njit(cache=True)
+def _jump_sources(F, pad, m, B, w, slope_bin, bmin, hb, barg, src):
+    """The cheapest jump source of every landing bin under the binned size prior.
 
     Columns are binned ``B`` at a time; a jump from bin q to bin q' costs
-    ``slope_bin·max(0, |q − q'| − w)`` on top of the penalty. Per source bin its best cell
-    (vectorised minimum), then the best source bin of each landing bin: a minimum over the
-    ``2w + 1`` bins around it, then a two-pass linear distance transform over the bins
-    (Felzenszwalb and Huttenlocher 2012, the L1 case). ``out[j]`` gets the cheapest source cost
-    of column j's bin, ``src[q]`` that source's column. O(m + nbins·w).
+    ``slope_bin·max(0, |q − q'| − w)`` on top of the penalty. ``bmin`` holds each source bin's
+    best cost (:func:`_bin_minima` of the previous row ``F``); per landing bin the best source
+    bin: a minimum over the ``2w + 1`` bins around it, then a two-pass linear distance transform
+    over the bins (Felzenszwalb and Huttenlocher 2012, the L1 case). ``hb[q]`` gets the cost of
+    landing bin q's cheapest source, ``src[q]`` that source's column (the first column of the
+    source bin at the bin's minimum). O(nbins·w), plus one bin's scan per source bin used.
     """
     nb = (m + B - 1) // B
     for q in range(nb):
-        bmin[q] = _row_min(F, pad + q * B, min(B, m - q * B))
         barg[q] = -1                            # the bin's best column, found when used
-    hb = bmin[nb:2 * nb]
     for q in range(nb):                         # source bins first, their columns at the end
         best = INF
         arg = q
@@ -107,9 +119,6 @@ def _jump_costs(F, pad, m, B, w, slope_bin, bmin, barg, out, src):
             hb[q] = v
             src[q] = src[q + 1]
     for q in range(nb):
-        s0 = q * B
-        o = out[s0:min(s0 + B, m)]
-        o[:] = hb[q]
         b = src[q]
         if barg[b] < 0:
             barg[b] = b * B + _first_index(F, pad + b * B, min(B, m - b * B), bmin[b])
@@ -131,25 +140,35 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
     the constant ``off_cost`` (``null_misfit`` on a row without any valid value, like every
     column); ``rowmean`` is the mean over the columns on the log.
 
-    Per row: the misfit pass, one pass per intermediate row of the FAST/SLOW moves, then one
-    fused branch-free pass over the candidates (a disabled move reads an all-inf row), so the
-    compiler can vectorise; the jump source (best cell of the row) is kept per row. With the
-    jump-size prior (``jump_bin > 0``) the jump cost of every column and the source of every
-    landing bin come from :func:`_jump_costs` on the previous row (sources into ``jsrc[r]``).
-    Anchor bands (module docstring) are added to the misfit row after its mean is taken.
+    Per row: the misfit pass (its mean taken before anchor bands, module docstring, are
+    added), then the jump sources (with the jump-size prior, ``jump_bin > 0``, from
+    :func:`_jump_sources` on the previous row's bin minima, sources into ``jsrc[r]``; without
+    it the best cell of the previous row), then one pass over the candidates and codes
+    (:func:`_best_moves`; a disabled move reads an all-inf row), then the row's bin minima
+    (:func:`_bin_minima`), which give its minimum and the first column at it. Every cell gets
+    the same arithmetic, in the same order, as in the first version of this kernel (one fused
+    select pass with byte codes, 2.7 ns per cell on the curve screening benchmark's wells,
+    now about 1.0-1.6 ns).
     """
     nb = Fring.shape[0]
     m = lo_t.shape[1]
     pad = (Fring.shape[1] - m) // 2
     n = c1 - c0
+    none = np.full(m + 2 * pad, INF)
+    zero = np.zeros(n)
     Xf = np.empty(n)
     Xs = np.empty(n)
-    none = np.full(m + 2 * pad, INF)
     prior = jump_bin > 0 and jump_pen < INF
     jv = np.empty(m)
-    nbin = (m + jump_bin - 1) // jump_bin if prior else 1
-    bmin = np.empty(2 * nbin)
+    # bins of columns: the prior's, or _CHUNK wide for the row minimum and its first column
+    B = jump_bin if prior else _CHUNK
+    nbin = (m + B - 1) // B
+    bcur = np.full(nbin, INF)                   # bin minima of this row and of the previous
+    bprev = np.full(nbin, INF)
+    hb = np.empty(nbin)
     barg = np.empty(nbin, np.int64)
+    if prior and r0 > r_first:
+        _bin_minima(Fring[(r0 - 1) % nb], pad, c0, c1, B, bprev)
     ka = np.searchsorted(anc_row, r0)
     for r in range(r0, r1):
         slot = r % nb
@@ -186,53 +205,99 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
         else:
             Fp = Fring[(r - 1) % nb]
             op = pad + c0 - (Rr[r] - Rr[r - 1])
-            s = sig[r]
-            Ff = none
-            of = pad + c0
-            Xf[:] = strain_pen
+            # FAST: ff + (sf + ef) is ff + (strain + the misfit of its one intermediate row)
+            # for bf = 2 (stretch 1.5), ff + strain for bf = 1; other bf: the sum made first
+            Ff, of, ef, sf = none, pad + c0, zero, strain_pen
             if r - bf >= r_first and run[r] >= bf:
                 Ff = Fring[(r - bf) % nb]
-                of = pad + c0 - (Rr[r] - Rr[r - bf]) - s
-                for t in range(r - bf + 1, r):
-                    _add_shifted(Xf, Ering[t % nb], pad + c0 - (Rr[r] - Rr[t]), n)
-            Fs = none
-            os_ = pad + c0
-            Xs[:] = strain_pen
+                of = pad + c0 - (Rr[r] - Rr[r - bf]) - sig[r]
+                if bf == 2:
+                    t = r - 1
+                    ef = _shifted(Ering[t % nb], pad + c0 - (Rr[r] - Rr[t]), n)
+                elif bf > 2:
+                    _strain_sum(Xf, Ering, nb, pad + c0, Rr, r, r - bf + 1, strain_pen)
+                    ef, sf = Xf, 0.0
+            # SLOW: fs + ((ss + es1) + es2), likewise for bs = 3 and 2
+            Fs, os_, es1, es2, ss = none, pad + c0, zero, zero, strain_pen
             if r - bs >= r_first and run[r] >= bs:
                 Fs = Fring[(r - bs) % nb]
-                os_ = pad + c0 - (Rr[r] - Rr[r - bs]) + s
-                for t in range(r - bs + 1, r):
-                    _add_shifted(Xs, Ering[t % nb], pad + c0 - (Rr[r] - Rr[t]), n)
+                os_ = pad + c0 - (Rr[r] - Rr[r - bs]) + sig[r]
+                if bs <= 3:
+                    t = r - bs + 1
+                    es1 = _shifted(Ering[t % nb], pad + c0 - (Rr[r] - Rr[t]), n)
+                    if bs == 3:
+                        es2 = _shifted(Ering[(t + 1) % nb], pad + c0 - (Rr[r] - Rr[t + 1]), n)
+                else:
+                    _strain_sum(Xs, Ering, nb, pad + c0, Rr, r, r - bs + 1, strain_pen)
+                    es1, ss = Xs, 0.0
             if prior:
-                _jump_costs(Fp, pad, m, jump_bin, jump_wbins, slope_bin, bmin, barg, jv,
-                            jsrc[r])
+                _jump_sources(Fp, pad, m, jump_bin, jump_wbins, slope_bin, bprev, hb, barg,
+                              jsrc[r])
+                for q in range(c0 // B, (c1 + B - 1) // B):
+                    jv[max(q * B, c0):min(q * B + B, c1)] = hb[q] + jump_pen
             else:
-                jv[:] = rowmin[r - 1]
-            jc = jv[c0:c1]
-            fp = Fp[op:op + n]
-            ff = Ff[of:of + n]
-            fs = Fs[os_:os_ + n]
-            for j in range(n):
-                # selects, no data-dependent branches; ties keep the earlier move
-                c = fp[j]
-                code = np.uint8(FOLLOW)
-                v = ff[j] + Xf[j]
-                lt = v < c
-                c = v if lt else c
-                code = np.uint8(FAST) if lt else code
-                v = fs[j] + Xs[j]
-                lt = v < c
-                c = v if lt else c
-                code = np.uint8(SLOW) if lt else code
-                v = jc[j] + jump_pen
-                lt = v < c
-                c = v if lt else c
-                code = np.uint8(JUMP) if lt else code
-                fr[j] = c + er[j]
-                cr[j] = code
-        best = _row_min(Fr, pad + c0, n)
+                jv[c0:c1] = rowmin[r - 1] + jump_pen
+            _best_moves(Fp[op:op + n], Ff[of:of + n], ef, sf, Fs[os_:os_ + n], es1, es2, ss,
+                        jv[c0:c1], er, fr, cr)
+        _bin_minima(Fr, pad, c0, c1, B, bcur)
+        best = INF
+        for q in range(c0 // B, (c1 + B - 1) // B):
+            best = min(best, bcur[q])
         rowmin[r] = best
-        rowarg[r] = c0 + _first_index(Fr, pad + c0, n, best)
+        rowarg[r] = _first_in_bins(Fr, pad, c0, c1, B, bcur, best)
+        if prior:
+            bcur, bprev = bprev, bcur
+
+
+@njit(cache=True)
+def _shifted(a, off, n):
+    return a[off:off + n]
+
+
+@njit(cache=True)
+def _strain_sum(X, Ering, nb, off, Rr, r, t0, strain_pen):
+    """``X = strain_pen + E[t0] + ... + E[r-1]``, each row shifted to the lag of row r, added
+    in that order."""
+    X[:] = strain_pen
+    for t in range(t0, r):
+        _add_shifted(X, Ering[t % nb], off - (Rr[r] - Rr[t]), X.shape[0])
+
+
+@njit(cache=True)
+def _first_in_bins(F, pad, c0, c1, B, bmin, best):
+    """First column within c0..c1-1 of row ``F`` whose cost is ``best``, found through the bin
+    minima: the first bin whose minimum is ``best``, then the first such column in it."""
+    for q in range(c0 // B, (c1 + B - 1) // B):
+        if bmin[q] == best:
+            lo = max(q * B, c0)
+            return lo + _first_index(F, pad + lo, min(q * B + B, c1) - lo, best)
+    return c0
+
+
+@njit(cache=True)
+def _best_moves(fp, ff, ef, sf, fs, es1, es2, ss, aj, er, fr, cr):
+    """One row's cost and move code per column, in one pass: the cheapest of FOLLOW
+    (``fp``), FAST (``ff + (sf + ef)``), SLOW (``fs + ((ss + es1) + es2)``) and JUMP (``aj``,
+    penalty included), ties keeping the earlier move, plus the misfit ``er``. The code is an
+    integer narrowed on the store: a byte select per candidate kept the loop scalar (4x
+    slower)."""
+    for j in range(fr.shape[0]):
+        c = fp[j]
+        code = FOLLOW
+        v = ff[j] + (sf + ef[j])
+        if v < c:
+            c = v
+            code = FAST
+        v = fs[j] + ((ss + es1[j]) + es2[j])
+        if v < c:
+            c = v
+            code = SLOW
+        v = aj[j]
+        if v < c:
+            c = v
+            code = JUMP
+        fr[j] = c + er[j]
+        cr[j] = np.uint8(code)
 
 
 @njit(cache=True)

@@ -645,12 +645,18 @@ class AlignmentEngine:
 
         half = 0.5 * min(float(self.calibrate_window), m / 8.0)
         local = half > 0
+        # the coarse engines depend on the type log and settings only: made once per engine
+        made = self.__dict__.setdefault("coarse_", {})
+        if "plain" not in made:
+            made["plain"] = coarse_engine(ref_z)
+            if local:
+                made["local"] = coarse_engine(running_standardise(
+                    ref_z, np.arange(m, dtype=float), half))
         if local:
             arc = np.cumsum(np.maximum(np.abs(s), float(self.min_rate)))
-            coarse_local = coarse_engine(running_standardise(ref_z, np.arange(m, dtype=float),
-                                                             half))
+            coarse_local = made["local"]
             x_local = running_standardise(x, arc, half)
-        coarse = coarse_engine(ref_z)
+        coarse = made["plain"]
         for k in range(int(self.calibrate_passes)):
             if k == 0 and local:
                 al = coarse_local._align(x_local, s / f, None, None, evidence=False)

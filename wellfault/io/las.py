@@ -74,11 +74,16 @@ class _Scan:
     def data_lines(self) -> list[int]:
         """1-based file line number of each data line (blank and # lines skipped)."""
         return [self.a_line + 1 + k for k, ln in enumerate(self.data_text.splitlines())
-                if ln.strip() and not ln.lstrip().startswith("#")]
+                if _is_data_line(ln)]
 
     def data_rows(self) -> list[tuple[int, str]]:
         lines = self.data_text.splitlines()
         return [(n, lines[n - self.a_line - 1]) for n in self.data_lines]
+
+
+def _is_data_line(line: str) -> bool:
+    """A line of the ~A section that holds values (not blank, not a # comment)."""
+    return bool(line.strip()) and not line.lstrip().startswith("#")
 
 
 _SECTION = re.compile(r"^[ \t]*~(.?)", flags=re.MULTILINE)
@@ -153,7 +158,8 @@ def _scan(text: str, source: str) -> _Scan:
                 "data block into the first"
             )
     scan = _Scan(source, text[:a_pos], body("A"), a_line, wrapped, n_curves)
-    if not scan.data_lines:
+    # stops at the first data line: the line numbers are only needed for messages
+    if not any(_is_data_line(ln) for ln in scan.data_text.splitlines()):
         raise InputError(f"{source}: the ~A section (line {a_line}) has no data rows; the file "
                          "is header-only or was cut off; export the log again with its data")
     return scan
