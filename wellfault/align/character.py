@@ -175,7 +175,7 @@ def weak_runs(kappa: np.ndarray, s0_m: float, ds: float,
 #: Down-weighting of a cut whose either side lies where the type log is weak: its confidence's
 #: log-odds drop by this coefficient times ln(κ'/κ'_weak) with κ' = κ + 0.05 (no change at or
 #: above :data:`WEAK_BELOW`). Fitted by benchmarks/calibrate_confidence.py on seeds 10000+
-#: (740 wells, 202 + 183 cuts on low-character type logs): about zero since the engine's
+#: (740 wells, 198 + 177 cuts on low-character type logs): about zero since the engine's
 #: confidence was refitted on the same set (CONFIDENCE_COEF) — its margin, correlation and run
 #: carry what the type log's character says about a cut; the weak stretches are *said* (notes),
 #: not discounted. Refit it after CONFIDENCE_COEF.

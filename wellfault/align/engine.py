@@ -207,9 +207,9 @@ __all__ = ["AlignmentEngine", "StreamingAligner", "Alignment", "Jump", "stretch_
 #: Coefficients of the calibrated cut confidence (module docstring, "Cut evidence"): the
 #: logistic model P(real) = 1 / (1 + exp(-b . [1, ln(1 + margin), correlation, ln(run)])),
 #: fitted by benchmarks/calibrate_confidence.py (default arguments) on 740 forward-modelled
-#: wells (seeds 10000+, type logs on a 0.1524 m grid, low-character logs included): 838 cuts,
-#: 673 real.
-CONFIDENCE_COEF: tuple[float, float, float, float] = (-8.545, 0.4111, 5.678, 0.8381)
+#: wells (seeds 10000+, type logs on a 0.1524 m grid, low-character logs included): 922 cuts,
+#: 677 real.
+CONFIDENCE_COEF: tuple[float, float, float, float] = (-9.924, 0.3421, 5.959, 0.9949)
 
 #: Default slope of the jump-size prior: a jump twice the plausible size costs
 #: ``1 + PRIOR_EXCESS`` plain jumps (module docstring, "Jump-size prior").
