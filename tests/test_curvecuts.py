@@ -271,7 +271,7 @@ def test_a_gap_in_the_log_is_bridged_not_read_as_a_fault(gap):
     np.testing.assert_array_equal(res.track["md_m"], well.curves.index)   # the log's samples
     raw = find_cuts_from_curves(well, col, syn.trajectory,
                                 settings=CurveSettings.make(gap_m=np.inf))
-    assert len(raw.cuts) == 2 and any(gap[0] <= c.md_m <= gap[1] + 1 for c in raw.cuts)
+    assert len(raw.cuts) >= 2 and any(gap[0] <= c.md_m <= gap[1] + 1 for c in raw.cuts)
 
 
 def test_a_cut_inside_a_gap_is_bracketed_by_the_gap():

@@ -175,10 +175,11 @@ def weak_runs(kappa: np.ndarray, s0_m: float, ds: float,
 #: Down-weighting of a cut whose either side lies where the type log is weak: its confidence's
 #: log-odds drop by this coefficient times ln(κ'/κ'_weak) with κ' = κ + 0.05 (no change at or
 #: above :data:`WEAK_BELOW`). Fitted by benchmarks/calibrate_confidence.py on seeds 10000+
-#: (740 wells, 239 + 206 cuts on low-character type logs): small — at κ = 0 the log-odds drop
-#: by 0.38 (0.90 → 0.86): the engine's margin, correlation and run already carry most of what
-#: the type log's character says about a cut. Refit it after CONFIDENCE_COEF.
-CHARACTER_COEF = 0.1247
+#: (740 wells, 198 + 177 cuts on low-character type logs): about zero since the engine's
+#: confidence was refitted on the same set (CONFIDENCE_COEF) — its margin, correlation and run
+#: carry what the type log's character says about a cut; the weak stretches are *said* (notes),
+#: not discounted. Refit it after CONFIDENCE_COEF.
+CHARACTER_COEF = 5.363e-06
 
 
 def weigh_confidence(confidence: float, character: float, *, coef: float = CHARACTER_COEF,
