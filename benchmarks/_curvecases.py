@@ -1,7 +1,7 @@
 """Shared case lists for bench_curves.py and calibrate_confidence.py (not a module users need).
 
 A *case* is (label, source log, type-log column, seed, scenario keywords): the well is drawn by
-:func:`wellfault.scenarios.curve_scenario` from the source log's column and aligned against the
+:func:`wellfault.synth.real_logs.curve_scenario` from the source log's column and aligned against the
 type-log column (the same one, except for the "unrelated" cases, where it is another log's:
 every cut found there is false).
 """
@@ -35,7 +35,7 @@ def low_name(log: str, seed: int) -> str:
 
 @lru_cache(maxsize=None)
 def low_log(name: str):
-    from wellfault.scenarios import low_character_log
+    from wellfault.synth.low_character import low_character_log
 
     _, log, seed = name.split(":")
     return low_character_log(log, reference_data(), int(seed))
@@ -43,8 +43,8 @@ def low_log(name: str):
 
 @lru_cache(maxsize=None)
 def column(name: str):
-    from wellfault.forward import synthetic_column
-    from wellfault.scenarios import real_gr_column
+    from wellfault.synth.columns import synthetic_column
+    from wellfault.synth.real_logs import real_gr_column
 
     if name.startswith(LOW + ":"):
         return low_log(name).type_log
@@ -55,10 +55,12 @@ def column(name: str):
 
 def run_case(case, methods=("engine",), settings=None):
     """Run the named methods on one case; returns {method: (rows, detected, seconds)}."""
-    from wellfault.curvecuts import (CurveSettings, find_cuts_dtw_baseline,
-                                     find_cuts_from_curves, find_cuts_lag_screen)
-    from wellfault.evaluation import score_scenario
-    from wellfault.scenarios import curve_scenario, low_character_scenario
+    from wellfault.evidence.curve_settings import CurveSettings
+    from wellfault.evidence.curve_baselines import find_cuts_dtw_baseline, find_cuts_lag_screen
+    from wellfault.evidence.curvecuts import find_cuts_from_curves
+    from wellfault.synth.evaluation import score_scenario
+    from wellfault.synth.real_logs import curve_scenario
+    from wellfault.synth.low_character import low_character_scenario
 
     label, src, dst, seed, kw = case
     if src.startswith(LOW + ":"):
@@ -103,7 +105,7 @@ def _with_tops(tops):
     def run(well, col, trajectory, *, bed_dip, settings):
         from types import SimpleNamespace
 
-        from wellfault.detect import analyse_well
+        from wellfault.evidence.detect import analyse_well
 
         res = analyse_well(well, col, tops=tops, trajectory=trajectory, bed_dip=bed_dip,
                            curves=settings)

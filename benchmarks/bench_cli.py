@@ -6,7 +6,7 @@ Run:  python benchmarks/bench_cli.py [--seeds 0 1 2] [--repeat 5] [--reference m
 The test well (benchmark seeds 0+): a reference column of 24 invented units (``synthetic_column``,
 seed 0, 100-160 m each: a type log of about 20,900 samples at 0.1524 m) logged by a vertical
 type well; a deviated well of about 6,000 samples drawn through it by
-:func:`wellfault.scenarios.curve_scenario` (seeded, 1-2 faults, noise, tool gain and offset),
+:func:`wellfault.synth.real_logs.curve_scenario` (seeded, 1-2 faults, noise, tool gain and offset),
 written as LAS, tops and survey files like a user's.
 
 Printed, each command run ``--repeat`` times as a new process (numba's on-disk cache warm; the
@@ -53,11 +53,11 @@ REPO = Path(__file__).resolve().parents[1]
 #: Children run here: ``python -c`` puts its folder first on sys.path, which must not be a
 #: checkout (PYTHONPATH chooses the code).
 NEUTRAL = tempfile.gettempdir()
-#: The installed command: ``wellfault.cli.console`` (``main`` in code from before it existed).
+#: The installed command: ``wellfault.cli.app.console`` (``main`` in code from before it existed).
 MAIN = ("import sys, wellfault.cli as c\n"
         "(getattr(c, 'console', None) or (lambda: sys.exit(c.main())))()")
 
-#: Run inside the child: ``wellfault.cli.main(argv)`` with the time of every import (at any
+#: Run inside the child: ``wellfault.cli.app.main(argv)`` with the time of every import (at any
 #: depth of the call, counted once at the outermost) and of the readers, evidence and writer
 #: kept apart; then the same call again (in-process). Prints one JSON line.
 CHILD = r"""
@@ -97,7 +97,7 @@ def phase(name, fn):
             add(name, t, i0)
     return run
 
-import wellfault.cli as cli, wellfault.detect as detect, wellfault.io as io
+import wellfault.cli as cli, wellfault.evidence.detect as detect, wellfault.io as io
 import wellfault.align.engine as engine
 for name in ("read_las", "read_tops", "read_survey", "read_column_table", "read_dip_table"):
     setattr(io, name, phase("reading", getattr(io, name)))
@@ -115,16 +115,18 @@ assert cli.main(argv) == 0
 add("main", t)
 print(json.dumps({"cold": first, "again": acc, "child": [x - y for x, y in zip(now(), T0)]}))
 import gc
-gc.freeze()                 # as wellfault.cli.console does
+gc.freeze()                 # as wellfault.cli.app.console does
 """
 
 
 # ----------------------------------------------------------------------------- the test case
 def make_case(seed: int, folder: Path) -> dict:
     """Write the type well, the well and the column of one seed; the argv of each command."""
-    from wellfault.forward import Beds, simulate_well, synthetic_column
+    from wellfault.synth.structure import Beds
+    from wellfault.synth.forward import simulate_well
+    from wellfault.synth.columns import synthetic_column
     from wellfault.io import write_table
-    from wellfault.scenarios import curve_scenario
+    from wellfault.synth.real_logs import curve_scenario
 
     col = synthetic_column(24, seed=0, thickness_range_m=(100.0, 160.0), name="bench column")
     folder.mkdir(parents=True, exist_ok=True)
@@ -321,13 +323,13 @@ def main() -> None:
 
 def _same_when_written(this: bytes, ref: bytes) -> str:
     """'identical at the written precision' when the reference table, written at full
-    precision by older code, rounds to this one (wellfault.precision's rules), else
+    precision by older code, rounds to this one (wellfault.geo.precision's rules), else
     'DIFFERENT'."""
     import io
 
     import pandas as pd
 
-    from wellfault.precision import round_table
+    from wellfault.geo.precision import round_table
 
     a = pd.read_csv(io.BytesIO(this))
     b = pd.read_csv(io.BytesIO(ref))

@@ -6,9 +6,9 @@ Run:  python benchmarks/bench_curves.py [--per-log 70] [--invented 40] [--procs 
 The issue "Fault cuts from log curves" sets the goals this script checks: on >= 200
 forward-modelled wells from type logs built on the real gamma-ray curves of
 ../shared/reference_data (P-129 Kennetcook, F03-02 North Sea, Wellington KGS 1-32; intervals and
-why in wellfault.scenarios.REAL_GR_LOGS), with noise 10-20 % of the log's robust spread, +-15 %
+why in wellfault.synth.real_logs.REAL_GR_LOGS), with noise 10-20 % of the log's robust spread, +-15 %
 unit thickness, tool gain 0.8-1.25 and offset +-0.35 spread, vertical, deviated and high-angle
-wells (wellfault.scenarios.curve_scenario), 0-2 normal or reverse faults:
+wells (wellfault.synth.real_logs.curve_scenario), 0-2 normal or reverse faults:
 
 * recall >= 0.9 for |Δs| >= 5 m;
 * cut depth error median <= 1 m, 90th percentile <= 3 m;
@@ -18,24 +18,24 @@ wells (wellfault.scenarios.curve_scenario), 0-2 normal or reverse faults:
   attitude given, where the well does not run within 0.5° of the fault plane);
 * confidence calibrated: among cuts with confidence >= 0.9, at least 90 % real.
 
-Three methods, scored by the same code (wellfault.evaluation.score_scenario):
+Three methods, scored by the same code (wellfault.synth.evaluation.score_scenario):
 
-* ``engine`` — wellfault.curvecuts.find_cuts_from_curves (the DP alignment engine);
+* ``engine`` — wellfault.evidence.curvecuts.find_cuts_from_curves (the DP alignment engine);
 * ``dtw``    — the published baseline: monotone open-ended DTW of the same standardised, strat-
   resampled curves, cuts read from runs of skipped or stalled path steps
-  (wellfault.curvecuts.find_cuts_dtw_baseline). It cannot represent a repeat;
+  (wellfault.evidence.curve_baselines.find_cuts_dtw_baseline). It cannot represent a repeat;
 * ``lag``    — the cheap screen: tracked windowed-correlation lag + PELT change points
-  (wellfault.curvecuts.find_cuts_lag_screen), a cross-check.
+  (wellfault.evidence.curve_baselines.find_cuts_lag_screen), a cross-check.
 
 Evaluation seeds are 0.. (the confidence was fitted on seeds 10000+ by
 benchmarks/calibrate_confidence.py; tests/test_curve_accuracy.py uses seeds 500+). An invented
-column (wellfault.forward.synthetic_column) is run for contrast and reported apart. A stress
+column (wellfault.synth.columns.synthetic_column) is run for contrast and reported apart. A stress
 section reports, for the engine, wells aligned against an UNRELATED real type log (every cut is
 false: how many are reported, how many confidently) and wells with two faults 10-60 m apart.
 Times are wall seconds per well of each method alone on this machine (the header says which).
 
 Low-character type logs (the issue "Curve evidence on logs with little character"): each real
-log degraded ``--low-logs`` times (wellfault.scenarios.low_character_log: thick shales and
+log degraded ``--low-logs`` times (wellfault.synth.low_character.low_character_log: thick shales and
 monotonous carbonates, casing attenuation, old-tool response, counting noise; degradation seeds
 0+) with ``--low`` wells each (seeds 0+; throws 5-110 m, |Δs| about 5-140 m), printed beside the
 character-rich figures of the same run: curves alone; curves with tops (``wellfault detect
@@ -171,7 +171,7 @@ def main(argv=None) -> None:
     ap.add_argument("--procs", type=int, default=2)
     ap.add_argument("--save", default="", help="write the per-cut tables as PREFIX_*.csv")
     a = ap.parse_args(argv)
-    from wellfault.evaluation import reliability_table
+    from wellfault.synth.evaluation import reliability_table
 
     methods = tuple(a.methods)
     real = cc.cases("real", cc.REAL, range(a.per_log))
@@ -284,7 +284,7 @@ def low_figures(rows, det, wells, secs) -> dict:
 
 def low_section(by, rich: dict | None) -> None:
     """The low-character figures beside the character-rich ones of the same run."""
-    from wellfault.evaluation import reliability_table
+    from wellfault.synth.evaluation import reliability_table
 
     nl = len(by["low"])
     cols = {}

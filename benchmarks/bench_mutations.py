@@ -3,7 +3,7 @@
 Each case takes a valid set of inputs — a demo well of the invented field (LAS, tops, survey,
 column), the real Wellington KGS 1-32 log with its published tops (and a column made from them),
 the real P-129 and F03-02 logs with tops placed inside their logged depths, or one of the real
-deviation surveys — damages one file with :func:`wellfault.mutations.mutate` (seeded edits of the
+deviation surveys — damages one file with :func:`wellfault.synth.mutations.mutate` (seeded edits of the
 kinds users' files suffer), and runs the command in this process as a user would:
 ``wellfault detect`` (tops evidence; every ``--curves-every``-th demo case also with the type
 well's curves), ``wellfault survey``, and every ``--screen-every`` cases a ``wellfault screen``
@@ -113,7 +113,7 @@ def _init(folder: str) -> None:
 
 
 def _run_cli(argv: list[str]) -> tuple[int | None, str, str | None]:
-    from wellfault.cli import main
+    from wellfault.cli.app import main
 
     out, err = io.StringIO(), io.StringIO()
     try:
@@ -136,7 +136,7 @@ def _verdict(code, err: str, tb: str | None, ok_codes=(0,)) -> str:
 
 
 def _mutated_copy(src: Path, seed: int, tag: str) -> tuple[Path, list]:
-    from wellfault.mutations import draw_edits, mutate
+    from wellfault.synth.mutations import draw_edits, mutate
 
     rng = np.random.default_rng(seed)
     edits = draw_edits(rng)

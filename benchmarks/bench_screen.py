@@ -1,9 +1,9 @@
 """Field screening at scale: wells per second, speed-up and memory (not a test).
 
-Draws invented fields with the vectorised tops generator (:mod:`wellfault.fieldsim`): wells on
+Draws invented fields with the vectorised tops generator (:mod:`wellfault.synth.fieldsim`): wells on
 a jittered grid (~300 m spacing), 30 % of them deviated (build-and-hold), 15 planar beds
 dipping 2°, nine parallel normal faults (60° toward 090, throws 20-60 m, 3 km apart) and a
-lateral thickness trend; then screens them with :func:`wellfault.screen.screen_wells` by tops
+lateral thickness trend; then screens them with :func:`wellfault.field.screen.screen_wells` by tops
 (two passes with neighbour-aware thickness, fault fitting, re-measuring with the fitted
 planes) and prints one table:
 
@@ -53,8 +53,9 @@ sys.path.insert(0, str(HERE.parent))
 def make_field(folder: Path, n: int, seed: int = 1) -> dict:
     import numpy as np
 
-    from wellfault.fieldsim import field_tops, plan_wells, write_field
-    from wellfault.forward import Beds, PlanarFault, synthetic_column
+    from wellfault.synth.fieldsim import field_tops, plan_wells, write_field
+    from wellfault.synth.structure import Beds, PlanarFault
+    from wellfault.synth.columns import synthetic_column
 
     t0 = time.perf_counter()
     side = 300.0 * np.sqrt(n)
@@ -131,7 +132,7 @@ class _Sampler:
 
 def run_one(args) -> dict:
     """One configuration in this (fresh) process."""
-    from wellfault.screen import screen_wells
+    from wellfault.field.screen import screen_wells
 
     field = json.loads(args.field)
     client = cluster = None
@@ -203,9 +204,11 @@ def make_curve_field(folder: Path, n: int, seed: int = 3) -> dict:
     import numpy as np
     import pandas as pd
 
-    from wellfault.forward import Beds, PlanarFault, simulate_well, synthetic_column
+    from wellfault.synth.structure import Beds, PlanarFault
+    from wellfault.synth.forward import simulate_well
+    from wellfault.synth.columns import synthetic_column
     from wellfault.io import write_las, write_survey, write_tops
-    from wellfault.scenarios import build_trajectory
+    from wellfault.synth.scenarios import build_trajectory
 
     folder.mkdir(parents=True, exist_ok=True)
     t0 = time.perf_counter()
@@ -224,7 +227,7 @@ def make_curve_field(folder: Path, n: int, seed: int = 3) -> dict:
                                 inclination_deg=float(rng.uniform(20, 45)),
                                 azimuth_deg=float(rng.uniform(0, 360)), kickoff_m=800.0,
                                 td_m=5000.0, name=f"C{i:04d}")
-        from wellfault.trajectory import Trajectory
+        from wellfault.geo.trajectory import Trajectory
         st = traj.stations
         traj = Trajectory(st.md_m, st.inc_deg, st.azi_deg, x0_m=x, y0_m=y, ref_elevation_m=0.0,
                           name=f"C{i:04d}")
@@ -255,8 +258,8 @@ def make_curve_field(folder: Path, n: int, seed: int = 3) -> dict:
 
 
 def run_curves(field: dict, workers: int) -> dict:
-    from wellfault.forward import synthetic_column
-    from wellfault.screen import screen_wells
+    from wellfault.synth.columns import synthetic_column
+    from wellfault.field.screen import screen_wells
 
     column = synthetic_column(14, seed=field["column_seed"], curves=("GR",), pad_m=60.0)
     folder = Path(field["folder"])
@@ -298,8 +301,8 @@ def profile_curves(field: dict, n: int) -> None:
 
     import pandas as pd
 
-    from wellfault.forward import synthetic_column
-    from wellfault.screen import screen_wells
+    from wellfault.synth.columns import synthetic_column
+    from wellfault.field.screen import screen_wells
 
     column = synthetic_column(14, seed=field["column_seed"], curves=("GR",), pad_m=60.0)
     man = pd.read_csv(Path(field["folder"]) / "manifest.csv").head(n)

@@ -16,11 +16,11 @@ import time
 import numpy as np
 import pandas as pd
 
-from wellfault.evaluation import match_cuts, summarise
-from wellfault.forward import synthetic_column
-from wellfault.measure import MIN_FAULT_COSINE, FaultAssumptions
-from wellfault.scenarios import random_scenario
-from wellfault.topcuts import TopsTolerance, find_cuts_from_tops, smallest_visible_jump
+from wellfault.synth.evaluation import match_cuts, summarise
+from wellfault.synth.columns import synthetic_column
+from wellfault.evidence.measure import MIN_FAULT_COSINE, FaultAssumptions
+from wellfault.synth.scenarios import random_scenario
+from wellfault.evidence.topcuts import TopsTolerance, find_cuts_from_tops, smallest_visible_jump
 
 
 def main(n_wells: int = 1000) -> None:

@@ -1,12 +1,12 @@
 """While drilling: alert latency, false alerts, agreement with the batch command, update cost.
 
-Wells are forward-modelled (:func:`wellfault.scenarios.random_scenario`: vertical, deviated and
+Wells are forward-modelled (:func:`wellfault.synth.scenarios.random_scenario`: vertical, deviated and
 high-angle; bed dips 0-25°; 0-2 faults, normal and reverse, throws 5-80 m; unit thickness
 +-10 %; GR noise 5 API, tool gain 0.8-1.25 and offset +-15 API) through two kinds of reference
-column: invented ones (:func:`wellfault.forward.synthetic_column`) and ones whose type log is a
+column: invented ones (:func:`wellfault.synth.columns.synthetic_column`) and ones whose type log is a
 real gamma ray (P-129 Kennetcook 290-1900 m, and Wellington KGS 1-32, from
 ``../shared/reference_data``, when present). Each well is drilled sample by sample through a
-:class:`wellfault.watch.WellWatcher` (default settings), then finished (whole-well check).
+:class:`wellfault.live.watch.WellWatcher` (default settings), then finished (whole-well check).
 
 Reported:
 
@@ -24,7 +24,7 @@ Reported:
   (2,000 / 5,000 / 10,000 samples), split into the engine's push and the rest, with the largest
   single call (wall; the calibration re-runs), and the same fed 1 m at a time.
 
-* possible cuts (the break detector, :mod:`wellfault.watch_breaks`) on the same wells: the cuts
+* possible cuts (the break detector, :mod:`wellfault.live.watch_breaks`) on the same wells: the cuts
   |Δs| >= 20 m warned of (a possible cut within 10 m of MD), warned before the correlation's
   alert, the latency in hole and strat by r band; false warnings per km of hole and how far
   below their break they were withdrawn; and the update cost against the same feed without
@@ -66,11 +66,13 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from wellfault.curvecuts import CurveSettings, find_cuts_from_curves
-from wellfault.forward import Beds, PlanarFault, column_from_real_curve, simulate_well, \
-    synthetic_column
-from wellfault.scenarios import random_scenario
-from wellfault.watch import WatchSettings, WellWatcher
+from wellfault.evidence.curve_settings import CurveSettings
+from wellfault.evidence.curvecuts import find_cuts_from_curves
+from wellfault.synth.structure import Beds, PlanarFault
+from wellfault.synth.columns import column_from_real_curve, synthetic_column
+from wellfault.synth.forward import simulate_well
+from wellfault.synth.scenarios import random_scenario
+from wellfault.live.watch import WatchSettings, WellWatcher
 
 REF = Path(os.environ.get("WELLFAULT_REFERENCE_DATA",
                           Path(__file__).resolve().parents[2] / "shared" / "reference_data"))
@@ -493,7 +495,7 @@ def calibrate_breaks(n_wells: int, procs: int, saved: str | None = None) -> None
         score_break_rules(runs)
         return
 
-    from wellfault.scenarios import TRAJECTORY_KINDS
+    from wellfault.synth.scenarios import TRAJECTORY_KINDS
 
     labs = [lab for lab in CAL_SEEDS if lab in _columns()]
     # every kind of well (for the false warnings), and as many high-angle ones (the goal)

@@ -22,7 +22,7 @@ Calibration set (cases in _curvecases.py):
   between cuts are not a sign of a false cut);
 * ``unrelated`` — wells drawn from one real log aligned to another's type log: every cut false;
 * ``low``       — wells on low-character type logs degraded from the real logs (thick shales,
-  casing attenuation, old-tool response, counting noise; wellfault.scenarios.low_character_log,
+  casing attenuation, old-tool response, counting noise; wellfault.synth.low_character.low_character_log,
   degradation seeds 10000+), and ``lowclose``, the same with two faults 10-60 m apart.
 
 Then the down-weighting of cuts where the type log has little character
@@ -30,7 +30,7 @@ Then the down-weighting of cuts where the type log has little character
 confidence as an offset: logit P = logit(confidence) + coef * min(ln((κ + 0.05) / 1.05), 0),
 coef >= 0. Store both printed values.
 
-A cut is real when it matches a true cut (wellfault.evaluation.match_detected, 1 m slack).
+A cut is real when it matches a true cut (wellfault.synth.evaluation.match_detected, 1 m slack).
 """
 
 from __future__ import annotations
@@ -68,7 +68,7 @@ def calibration_cases(per_log: int) -> list:
 
 
 def _one(case):
-    from wellfault.curvecuts import CurveSettings
+    from wellfault.evidence.curve_settings import CurveSettings
 
     # every jump the curves would report, the confidence floor aside (it is set from this fit)
     return cc.run_case(case, ("engine",), CurveSettings.make(min_confidence=0.0))["engine"][1]
@@ -117,7 +117,7 @@ def main(argv=None) -> None:
     ap.add_argument("--procs", type=int, default=2)
     ap.add_argument("--save", type=str, default="", help="write the cut table (CSV) here")
     a = ap.parse_args(argv)
-    from wellfault.evaluation import reliability_table
+    from wellfault.synth.evaluation import reliability_table
 
     todo = calibration_cases(a.per_log)
     with Pool(a.procs) as pool:

@@ -2,7 +2,7 @@
 
 from pathlib import Path
 
-from wellfault.fieldgen import DEFAULT_SEED, describe_field, make_demo_field
+from wellfault.synth.fieldgen import DEFAULT_SEED, describe_field, make_demo_field
 
 if __name__ == "__main__":
     here = Path(__file__).resolve().parent

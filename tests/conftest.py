@@ -29,9 +29,9 @@ def load_manifest_well(manifest, name: str):
     """(well, trajectory, tops, bed dip) of one well of a field manifest (``read_manifest``
     frame, indexed by well or not): the inputs a test runs detection on. A well without a
     survey is vertical at its surface location."""
-    from wellfault.dip import BedDip
+    from wellfault.geo.dip import BedDip
     from wellfault.io import read_las, read_survey, read_tops
-    from wellfault.trajectory import Trajectory
+    from wellfault.geo.trajectory import Trajectory
 
     rows = manifest if manifest.index.name == "well" else manifest.set_index("well")
     row = rows.loc[name]

@@ -119,7 +119,7 @@ def test_numba_kernels_load_from_the_on_disk_cache_in_a_new_process():
 
 
 def test_the_installed_command_entry_point_runs_and_keeps_exit_codes(tmp_path):
-    """``wellfault.cli.console`` (the ``wellfault`` script): the cut table written, exit 0;
+    """``wellfault.cli.app.console`` (the ``wellfault`` script): the cut table written, exit 0;
     bad input exit 2."""
     out = tmp_path / "cuts.csv"
     argv = ["detect", str(FIELD / "VR_6H.las"), "--survey", str(FIELD / "VR_6H_survey.csv"),

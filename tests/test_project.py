@@ -75,7 +75,7 @@ def test_readme_usage_commands_run_on_the_demo_field(tmp_path, monkeypatch, caps
     repository's demo field, so its outputs land in a temporary folder) and exits 0."""
     import shutil
 
-    from wellfault.cli import main
+    from wellfault.cli.app import main
 
     cmds = _usage_commands()
     assert {argv[0] for _, argv in cmds} >= {"detect", "screen", "watch", "survey"}

@@ -22,21 +22,13 @@ from .errors import (
     WellfaultError,
     WellfaultWarning,
 )
-
-CAUTION = (
-    "CAUTION: fault cuts are interpretations. These results are aids for a qualified "
-    "geoscientist, to be checked against the logs, other wells and seismic; they are not the "
-    "sole basis for drilling, well-control or completion decisions. Follow local regulations "
-    "and company practice."
-)
-
-__version__ = "0.1.0"
+from .about import CAUTION, __version__
 
 if TYPE_CHECKING:  # what the lazy names below are, for type checkers (tests keep them equal)
-    from .column import ReferenceColumn
-    from .curvecuts import CurveSettings
-    from .detect import WellAnalysis, analyse_well, detect_files, find_fault_cuts
-    from .dip import BedDip
+    from .geo.column import ReferenceColumn
+    from .evidence.curve_settings import CurveSettings
+    from .evidence.detect import WellAnalysis, analyse_well, detect_files, find_fault_cuts
+    from .geo.dip import BedDip
     from .io import (
         read_column_table,
         read_dip_table,
@@ -47,27 +39,37 @@ if TYPE_CHECKING:  # what the lazy names below are, for type checkers (tests kee
         write_las,
         write_table,
     )
-    from .measure import FaultAssumptions, FaultPlane
-    from .results import CUT_COLUMNS, FaultCut, cuts_to_frame
-    from .topcuts import TopsTolerance
-    from .trajectory import Trajectory
-    from .units import DepthUnit, parse_depth_unit
-    from .well import Well
+    from .evidence.measure import FaultAssumptions, FaultPlane
+    from .evidence.results import CUT_COLUMNS, FaultCut, cuts_to_frame
+    from .evidence.topcuts import TopsTolerance
+    from .geo.trajectory import Trajectory
+    from .geo.units import DepthUnit, parse_depth_unit
+    from .geo.well import Well
+
 
 __getattr__, __dir__, _LAZY = lazy_exports(__name__, globals(), {
-    ".detect": ("find_fault_cuts", "analyse_well", "detect_files", "WellAnalysis"),
-    ".column": ("ReferenceColumn",),
-    ".trajectory": ("Trajectory",),
-    ".dip": ("BedDip",),
-    ".well": ("Well",),
-    ".results": ("FaultCut", "CUT_COLUMNS", "cuts_to_frame"),
-    ".measure": ("FaultAssumptions", "FaultPlane"),
-    ".topcuts": ("TopsTolerance",),
-    ".curvecuts": ("CurveSettings",),
-    ".io": ("read_las", "read_tops", "read_survey", "read_column_table", "read_dip_table",
-            "read_manifest", "write_las", "write_table"),
-    ".units": ("DepthUnit", "parse_depth_unit"),
+    ".evidence.detect": ("find_fault_cuts", "analyse_well", "detect_files", "WellAnalysis"),
+    ".geo.column": ("ReferenceColumn",),
+    ".geo.trajectory": ("Trajectory",),
+    ".geo.dip": ("BedDip",),
+    ".geo.well": ("Well",),
+    ".evidence.results": ("FaultCut", "CUT_COLUMNS", "cuts_to_frame"),
+    ".evidence.measure": ("FaultAssumptions", "FaultPlane"),
+    ".evidence.topcuts": ("TopsTolerance",),
+    ".evidence.curve_settings": ("CurveSettings",),
+    ".io": (
+        "read_las",
+        "read_tops",
+        "read_survey",
+        "read_column_table",
+        "read_dip_table",
+        "read_manifest",
+        "write_las",
+        "write_table",
+    ),
+    ".geo.units": ("DepthUnit", "parse_depth_unit"),
 })
+
 
 __all__ = [
     "CAUTION",

@@ -18,8 +18,8 @@ def lazy_exports(package: str, namespace: dict, exports: Mapping[str, tuple[str,
     ``exports`` maps a submodule (relative, e.g. ``".detect"``) to the names it gives the
     package. Reading one of them imports the submodule and keeps the value in ``namespace``
     (the package's globals), so later reads cost nothing. Any other name that is a submodule
-    of the package is imported as such (``wellfault.detect`` without ``import
-    wellfault.detect``).
+    of the package is imported as such (``wellfault.evidence.detect`` without ``import
+    wellfault.evidence.detect``).
     """
     where = {name: module for module, names in exports.items() for name in names}
 

@@ -24,24 +24,20 @@ from .._lazy import lazy_exports
 
 if TYPE_CHECKING:  # what the lazy names below are, for type checkers (tests keep them equal)
     from .dtw import DTWCut, dtw_baseline, dtw_cuts, dtw_subsequence
-    from .engine import (
-        CONFIDENCE_COEF,
-        Alignment,
-        AlignmentEngine,
-        Jump,
-        StreamingAligner,
-        running_standardise,
-        stretch_moves,
-    )
+    from .engine import CONFIDENCE_COEF, AlignmentEngine, stretch_moves
+    from .alignment import Alignment, Jump
+    from .stream import StreamingAligner
+    from .running import running_standardise
     from .lagcp import LagCut, LagTrack, lag_changepoints
     from .misfit import MISFITS, misfit_matrix, robust_location_scale, standardise
     from .resample import StratRows, resample_strat
     from .stream import TailAlignment
 
 __getattr__, __dir__, _LAZY = lazy_exports(__name__, globals(), {
-    ".engine": ("AlignmentEngine", "StreamingAligner", "Alignment", "Jump", "stretch_moves",
-                "running_standardise", "CONFIDENCE_COEF"),
-    ".stream": ("TailAlignment",),
+    ".engine": ("AlignmentEngine", "stretch_moves", "CONFIDENCE_COEF"),
+    ".stream": ("StreamingAligner", "TailAlignment"),
+    ".alignment": ("Alignment", "Jump"),
+    ".running": ("running_standardise",),
     ".misfit": ("standardise", "robust_location_scale", "misfit_matrix", "MISFITS"),
     ".resample": ("resample_strat", "StratRows"),
     ".dtw": ("dtw_baseline", "dtw_subsequence", "dtw_cuts", "DTWCut"),

@@ -193,16 +193,23 @@ from __future__ import annotations
 
 import math
 import warnings
-from dataclasses import dataclass
 
 import numpy as np
 
 from ..errors import input_error
+from .alignment import Alignment
 from .misfit import check_misfit, reference_bounds, robust_location_scale
+from .running import _CAL_QUANTILES, running_standardise
 from .stream import StreamingAligner, _as_curves
 
-__all__ = ["AlignmentEngine", "StreamingAligner", "Alignment", "Jump", "stretch_moves",
-           "running_standardise", "CONFIDENCE_COEF", "PRIOR_EXCESS", "ANCHOR_COST_JUMPS"]
+__all__ = [
+    "AlignmentEngine",
+    "stretch_moves",
+    "CONFIDENCE_COEF",
+    "PRIOR_EXCESS",
+    "ANCHOR_COST_JUMPS",
+]
+
 
 #: Coefficients of the calibrated cut confidence (module docstring, "Cut evidence"): the
 #: logistic model P(real) = 1 / (1 + exp(-b . [1, ln(1 + margin), correlation, ln(run)])),
@@ -211,9 +218,12 @@ __all__ = ["AlignmentEngine", "StreamingAligner", "Alignment", "Jump", "stretch_
 #: 677 real.
 CONFIDENCE_COEF: tuple[float, float, float, float] = (-9.924, 0.3421, 5.959, 0.9949)
 
+
 #: Default slope of the jump-size prior: a jump twice the plausible size costs
 #: ``1 + PRIOR_EXCESS`` plain jumps (module docstring, "Jump-size prior").
 PRIOR_EXCESS = 1.0
+
+
 #: Default cost of a row outside its anchor's band, in plain jumps (module docstring,
 #: "Anchors").
 ANCHOR_COST_JUMPS = 1.5
@@ -227,87 +237,6 @@ def stretch_moves(stretch: float) -> tuple[int, int]:
     """
     k = float(stretch)
     return math.ceil(1.0 / (k - 1.0) - 1e-9), math.ceil(k / (k - 1.0) - 1e-9)
-
-
-@dataclass(frozen=True)
-class Jump:
-    """One jump of the alignment path: a candidate fault cut.
-
-    Attributes
-    ----------
-    sample : first well sample below the cut (DESIGN.md: a cut is reported at the first sample
-        below it).
-    row : DP row on which the jump lands.
-    j_before, j_after : reference position [reference samples] of the last sample above and of
-        the first sample below.
-    size : signed stratigraphic jump Δs = s(below) − s(above) minus the predicted increment
-        between the two samples [reference samples; multiply by ds for TST], from lines fitted
-        to the lag on either side (module docstring). Missing section when its sign equals
-        the direction of travel, repeated when opposite.
-    margin : evidence for the cut (see module docstring) [misfit units].
-    correlation : the smaller, above and below the cut, of the correlation between the well and
-        the type log read along the path over the evidence window — is there a match at all?
-    confidence : in [0, 1]: the calibrated probability that the cut is real (module
-        docstring, "Cut evidence").
-    bracket : (first, last) well sample that may be the first below the cut (placements
-        costing at most ``bracket_tolerance`` more than the best).
-    off_log : True when the sample above or below the jump is placed off the type log (in the
-        ``off_log`` margins): the jump is where the well leaves or re-enters the strat range
-        the type log covers, its size is unknown and it is not a measured cut.
-    rows_above, rows_below : DP rows from the previous jump (or the first row) to this one,
-        and from this one to the next (or past the last row): how far the well correlates
-        with the type log without a jump on either side.
-    """
-
-    sample: int
-    row: int
-    j_before: float
-    j_after: float
-    size: float
-    margin: float
-    correlation: float
-    confidence: float
-    bracket: tuple[int, int]
-    off_log: bool = False
-    rows_above: int = 0
-    rows_below: int = 0
-
-
-@dataclass(frozen=True)
-class Alignment:
-    """Result of aligning a well against the type log.
-
-    Attributes
-    ----------
-    path : (N,) float — reference position of every well sample [reference samples].
-    score : total cost of the optimal path (misfits + jump and strain penalties).
-    jumps : the jumps of the path, in well order.
-    confidence : (N,) float in [0, 1] — local fit quality: 1 − misfit at the path / mean misfit
-        of the row, smoothed over ``smooth_rows`` rows.
-    correlation : correlation between the whole well and the type log read along the path
-        (weighted mean over curves): low values mean the well does not match the type log and
-        its jumps mean little.
-    row_path : (R,) int — reference column of each DP row (negative or >= M: off the log).
-    sample_row : (N,) int — DP row of each well sample.
-    center, scale : (C,) — the well standardisation used.
-    on_log : (N,) bool — the sample's position lies within the type log (always True with
-        ``off_log = 0``); positions off it are below 0 or beyond M − 1.
-    """
-
-    path: np.ndarray
-    score: float
-    jumps: tuple[Jump, ...]
-    confidence: np.ndarray
-    correlation: float
-    row_path: np.ndarray
-    sample_row: np.ndarray
-    center: np.ndarray
-    scale: np.ndarray
-    on_log: np.ndarray | None = None
-
-    @property
-    def n_rows(self) -> int:
-        return int(self.row_path.shape[0])
 
 
 class AlignmentEngine:
@@ -633,7 +562,7 @@ class AlignmentEngine:
         standardisation fails where the type log has little character: in a monotonous
         stretch it divides noise by its own spread, so the first coarse path matches noise to
         noise, and the passes after it leave the level wrong (on calibration wells of the
-        low-character logs of wellfault.scenarios, a spread too small by a fifth and 9-13
+        low-character logs of wellfault.synth.scenarios, a spread too small by a fifth and 9-13
         spurious jumps per well in some; the well's own median and spread gave the right level
         and the true cuts). On character-rich logs the running start wins where it matters.
         Both starts can still settle on a wrong level (the quantiles of a hopping path's type-log
@@ -740,41 +669,3 @@ class AlignmentEngine:
                         scale[c] = sc
                         center[c] = float(qx.mean() - sc * qy.mean())
         return center, scale, score
-
-
-def running_standardise(values: np.ndarray, arc: np.ndarray, half: float) -> np.ndarray:
-    """Each sample minus the mean, over the standard deviation, of the samples within ``half``
-    of it in ``arc`` (non-decreasing positions), per curve, ignoring NaN.
-
-    Invariant to any gain and offset of the curve. NaN where fewer than 3 valid samples share
-    the window or the window is flat.
-
-    >>> running_standardise(np.arange(1.0, 6.0) * 5 + 7, np.arange(5.0), 2.0).ravel().round(3).tolist()
-    [-1.225, -0.447, 0.0, 0.447, 1.225]
-    """
-    v = np.asarray(values, dtype=float)
-    v = v[:, None] if v.ndim == 1 else v
-    a = np.asarray(arc, dtype=float)
-    lo = np.searchsorted(a, a - half, "left")
-    hi = np.searchsorted(a, a + half, "right")
-    out = np.full_like(v, np.nan)
-    for c in range(v.shape[1]):
-        ok = ~np.isnan(v[:, c])
-        x = np.where(ok, v[:, c], 0.0)
-        mu0 = np.median(x[ok]) if ok.any() else 0.0      # cumsums of centred values: stable
-        x = np.where(ok, x - mu0, 0.0)
-        c0 = np.concatenate([[0], np.cumsum(ok)])
-        c1 = np.concatenate([[0.0], np.cumsum(x)])
-        c2 = np.concatenate([[0.0], np.cumsum(x * x)])
-        cnt = c0[hi] - c0[lo]
-        with np.errstate(invalid="ignore", divide="ignore"):
-            mean = (c1[hi] - c1[lo]) / cnt
-            var = (c2[hi] - c2[lo]) / cnt - mean * mean
-            sd = np.sqrt(np.maximum(var, 0.0))
-            z = (x - mean) / sd
-        good = ok & (cnt >= 3) & (sd > 1e-9 * (1.0 + np.abs(mean)))
-        out[good, c] = z[good]
-    return out
-
-
-_CAL_QUANTILES = np.linspace(0.1, 0.9, 9)

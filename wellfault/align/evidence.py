@@ -1,4 +1,4 @@
-"""From the DP state to an :class:`~wellfault.align.engine.Alignment`: traceback, per-sample
+"""From the DP state to an :class:`~wellfault.align.alignment.Alignment`: traceback, per-sample
 positions, cut refinement on the well's own samples, cut margin, bracket and confidence.
 
 The definitions are in the docstring of :mod:`wellfault.align.engine` ("Cut evidence").
@@ -233,7 +233,7 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
     Without ``evidence`` the cut margins, brackets and confidences are left as NaN (used by
     the calibration pre-pass, which needs the path only).
     """
-    from .engine import Alignment, Jump
+    from .alignment import Alignment, Jump
 
     p, e = al._p, al.engine
     n = al.n_samples

@@ -35,7 +35,7 @@ windows the track can slide across a cut by the drift allowed in each straddling
 On the real-log benchmark 40 rows (6 m) did best; 130 rows (20 m) found fewer cuts.
 
 Measured (benchmarks/bench_curves.py, 210 wells on three real gamma-ray type logs of
-8,000-10,600 samples, through :func:`wellfault.curvecuts.find_cuts_lag_screen`): see the
+8,000-10,600 samples, through :func:`wellfault.evidence.curve_baselines.find_cuts_lag_screen`): see the
 benchmark's "lag screen" column — it finds most cuts of |Δs| >= 5 m with a few false ones,
 placed to a few metres of MD (a screen, not a pick), in about a second per well — no faster
 than the engine on logs of this size (per window an FFT over the whole type log, and the

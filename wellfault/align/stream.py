@@ -20,7 +20,8 @@ from .evidence import build_alignment
 from .resample import max_new_rows, new_resampler_state, resample_chunk
 
 if TYPE_CHECKING:
-    from .engine import Alignment, AlignmentEngine
+    from .alignment import Alignment
+    from .engine import AlignmentEngine
 
 __all__ = ["StreamingAligner", "TailAlignment"]
 
@@ -39,7 +40,7 @@ def _as_curves(values, n_curves: int, what: str) -> np.ndarray:
 class TailAlignment:
     """The optimal path's last rows, as :meth:`StreamingAligner.tail` returns them.
 
-    ``alignment`` is the :class:`~wellfault.align.engine.Alignment` of rows ``row0`` to
+    ``alignment`` is the :class:`~wellfault.align.alignment.Alignment` of rows ``row0`` to
     ``n_rows - 1`` and of well samples ``sample0`` to ``sample_end - 1`` (the samples of
     committed rows): its row and sample numbers, jump brackets included, count from ``row0``
     and ``sample0``. Its jumps, sizes, placements, margins and confidences have the batch

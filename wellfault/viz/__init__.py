@@ -1,0 +1,1 @@
+"""Pictures and reports: the stratigraphic position track, figures, HTML reports."""
