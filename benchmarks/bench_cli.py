@@ -97,13 +97,14 @@ def phase(name, fn):
             add(name, t, i0)
     return run
 
-import wellfault.cli as cli, wellfault.evidence.detect as detect, wellfault.io as io
+import wellfault.cli as cli, wellfault.cli.detect as cli_detect
+import wellfault.evidence.detect as detect, wellfault.io as io
 import wellfault.align.engine as engine
 for name in ("read_las", "read_tops", "read_survey", "read_column_table", "read_dip_table"):
     setattr(io, name, phase("reading", getattr(io, name)))
 detect.find_cuts_from_tops = phase("tops evidence", detect.find_cuts_from_tops)
 detect.find_cuts_from_curves = phase("curve alignment", detect.find_cuts_from_curves)
-cli._write_csv = phase("writing", cli._write_csv)
+cli_detect._write_csv = phase("writing", cli_detect._write_csv)
 engine.AlignmentEngine.calibrate = phase("calibration", engine.AlignmentEngine.calibrate)
 argv = json.loads(sys.argv[1])
 assert cli.main(argv) == 0
