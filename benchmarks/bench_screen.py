@@ -284,7 +284,7 @@ def _cpu_tree() -> float:
 
 #: where the time of a curve screening goes: (label, function) whose cumulative time is shown
 _PROFILE_PARTS = (
-    ("reading (LAS, tops, survey)", "screen.py", "_load"),
+    ("reading (LAS, tops, survey)", "screen_well.py", "_load"),
     ("calibration passes (coarse DPs)", "engine.py", "calibrate"),
     ("engine DP kernel (all DPs)", "_kernels.py", "forward_rows"),
     ("resampling to strat rows", "resample.py", "resample_chunk"),
