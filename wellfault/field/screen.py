@@ -6,7 +6,7 @@
   stratigraphic distance drilled between them (``n·ΔP``, as tops evidence computes it); the
   field's unit thicknesses follow (:mod:`wellfault.neighbours`);
 * **pass 2 — detection**: tops evidence (:func:`wellfault.topcuts.find_cuts_from_tops`, what
-  :func:`wellfault.detect.find_fault_cuts` runs for tops) with each well's expected intervals
+  :func:`wellfault.evidence.detect.find_fault_cuts` runs for tops) with each well's expected intervals
   predicted from its neighbours (leave-one-out, robust, spatial) and a tight relative
   tolerance (DESIGN.md §4: "Field screening replaces the column thickness by the local
   thickness predicted from neighbouring wells"); without neighbours (``neighbours=False``, or a
@@ -40,7 +40,7 @@ A checkpoint made with other settings, another manifest or other versions of the
 is not resumed.
 
 Curve evidence: the worker passes ``_Config.curves`` (curve settings for the alignment engine)
-to :func:`wellfault.detect.analyse_well` when it is set. Without a given plausible separation
+to :func:`wellfault.evidence.detect.analyse_well` when it is set. Without a given plausible separation
 (``max_separation_m``), a pass 2b derives the field's own from the cuts of pass 2
 (:func:`_field_separation`) and reads again the wells with a curve cut beyond it.
 """

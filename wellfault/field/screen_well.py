@@ -55,8 +55,8 @@ class _Config:
     tolerance: TopsTolerance
     planes: tuple[FaultPlane, ...] = ()
     depth_unit: str | None = None
-    # Hook for curve evidence: the lead wires the alignment engine here (a type well, its
-    # tops and the curves to use); _detect then passes it to find_fault_cuts(curves=...).
+    # curve evidence: the CurveSettings screen_wells builds from the type well and the curves
+    # (None: tops only); the detection passes it to find_fault_cuts(curves=...)
     curves: object | None = None
 
 
