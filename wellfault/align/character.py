@@ -257,11 +257,10 @@ class CharacterMap:
         return out
 
     @staticmethod
-    def note(md_top: float, md_base: float, unit_suffix: str = "m", metres: float = 1.0,
-             surfaces: tuple[str, str] = ("", "")) -> str:
-        """"curve evidence weak from MD A to B <unit>" (+ the units the type log is weak in)."""
-        txt = (f"curve evidence weak from MD {md_top / metres:.1f} to {md_base / metres:.1f} "
-               f"{unit_suffix}")
+    def note(md_top: float, md_base: float, surfaces: tuple[str, str] = ("", "")) -> str:
+        """"curve evidence weak from MD A to B m" (+ the units the type log is weak in); in
+        metres like every note, restated in the output's unit where it is written."""
+        txt = f"curve evidence weak from MD {md_top:.1f} to {md_base:.1f} m"
         if surfaces[0] or surfaces[1]:
             a, b = surfaces
             txt += f" (type log without character in {a}{'' if a == b else ' to ' + b})"

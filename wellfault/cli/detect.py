@@ -133,9 +133,10 @@ def _cmd_detect(args) -> int:
         tolerance=TopsTolerance(args.tolerance, args.tolerance_floor),
         max_separation=args.max_separation, pick_tolerance=args.pick_tolerance)
     df = result.cuts
-    weak = [n for n in result.notes if n.startswith("curve evidence weak")]
     _write_csv(df, args.out, args.decimals)
     suffix = "ft" if any(c.endswith("_ft") for c in df.columns) else "m"
+    weak = [lengths_in_text(n, suffix, args.decimals) for n in result.notes
+            if n.startswith("curve evidence weak")]
     if args.report:
         from ..viz.report import write_well_report
 
@@ -149,7 +150,6 @@ def _cmd_detect(args) -> int:
         print(f"report written to {_where(args.report)}", file=sys.stderr)
     print(_summarise(df, suffix, args.decimals), file=sys.stderr)
     for note in weak:
-        print(f"  {result.well.name}: {lengths_in_text(note, suffix, args.decimals)}",
-              file=sys.stderr)
+        print(f"  {result.well.name}: {note}", file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK

@@ -257,14 +257,14 @@ def _align(inp: _Inputs, column: ReferenceColumn, settings: CurveSettings,
     return alignment, s, math.inf if free is None else int(free) * inp.ds
 
 
-def _mispicks(anchors: list[_Anchor], s: np.ndarray, inp: _Inputs, settings: CurveSettings,
-              unit) -> list[tuple[str, float, str]]:
+def _mispicks(anchors: list[_Anchor], s: np.ndarray, inp: _Inputs, settings: CurveSettings
+              ) -> list[tuple[str, float, str]]:
     """Picks the aligned path does not honour (outside the tolerance and a sample), each with
-    a note saying where the curves place the surface, in the well's depth unit. When most of
-    them (and at least three) are not honoured, one note says so instead: the curves do not
+    a note saying where the curves place the surface (in metres, like every note: outputs
+    restate lengths in their unit, :func:`wellfault.geo.precision.lengths_in_text`). When most
+    of them (and at least three) are not honoured, one note says so instead: the curves do not
     correlate with the picks, which is no finding about any one pick."""
     out = []
-    k = 1.0 / unit.metres
     for a in anchors:
         s_pick = inp.s0 + a.position * inp.ds
         tol = float(settings.pick_tolerance_m) + inp.ds
@@ -282,10 +282,10 @@ def _mispicks(anchors: list[_Anchor], s: np.ndarray, inp: _Inputs, settings: Cur
             while hi + 1 < ok.size and ok[hi + 1]:
                 hi += 1
             md_c = float(inp.md[lo + int(np.argmin(miss[lo:hi + 1]))])
-            where = f"; the curves place it at MD {md_c * k:.1f} {unit.suffix}"
+            where = f"; the curves place it at MD {md_c:.1f} m"
         else:
             where = "; the curves do not find it in this well"
-        note = f"possible mis-pick: {a.surface} picked at MD {a.md_m * k:.1f} {unit.suffix}"
+        note = f"possible mis-pick: {a.surface} picked at MD {a.md_m:.1f} m"
         out.append((a.surface, a.md_m, note + where))
     if len(out) >= 3 and len(out) > len(anchors) // 2:
         # most picks contradicted: the curves do not correlate here, the picks are not at fault
@@ -376,7 +376,7 @@ def find_cuts_from_curves(
     inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
     anchors = _anchors(picks, column, inp)
     alignment, s, plausible = _align(inp, column, settings, anchors)
-    mis = _mispicks(anchors, s, inp, settings, well.depth_unit)
+    mis = _mispicks(anchors, s, inp, settings)
     if mis and not mis[0][0]:          # the curves follow too few picks: anchors only detour
         alignment, s, plausible = _align(inp, column, settings, [])
     ds, names = inp.ds, inp.names
@@ -406,17 +406,15 @@ def find_cuts_from_curves(
                         note=f"curves {', '.join(names)} aligned to the type log")
         beyond = abs(ds_m) > plausible
         if beyond:
-            u = well.depth_unit
             cut = dataclasses.replace(cut, notes=cut.notes + (
-                f"; jump of {abs(ds_m) / u.metres:.0f} {u.suffix} TST is beyond the plausible "
-                f"separation ({plausible / u.metres:.0f} {u.suffix}): check it against "
-                "other evidence"))
+                f"; jump of {abs(ds_m):.0f} m TST is beyond the plausible separation "
+                f"({plausible:.0f} m): check it against other evidence"))
         cut.extra.update(margin=float(j.margin), correlation=float(j.correlation),
                          rows_above=int(j.rows_above), rows_below=int(j.rows_below),
                          beyond_plausible=bool(beyond), character=kappa,
                          engine_confidence=float(j.confidence))
         cuts.append(cut)
-    cuts, weak = _character_notes(cuts, cmap, track, column, well.depth_unit)
+    cuts, weak = _character_notes(cuts, cmap, track, column)
     return CurveResult(cuts, track, alignment, names, mis, plausible, weak)
 
 
@@ -440,7 +438,7 @@ def _on_log_strat(on_log, step: np.ndarray, sample: int) -> float:
     return float(min(st[sample - na:sample].sum(), st[sample:sample + nb].sum()))
 
 
-def _character_notes(cuts: list[FaultCut], cmap, track: pd.DataFrame, column, unit
+def _character_notes(cuts: list[FaultCut], cmap, track: pd.DataFrame, column
                      ) -> tuple[list[FaultCut], list[str]]:
     """Say where the curve evidence is weak (:mod:`wellfault.align.character`): one note per
     MD span of the well placed where the type log cannot tell positions apart, added to the
@@ -452,8 +450,8 @@ def _character_notes(cuts: list[FaultCut], cmap, track: pd.DataFrame, column, un
     notes = []
     for md_top, md_base, s_a, s_b in spans:
         units = column.unit_at(np.array([s_a, s_b]))
-        notes.append(cmap.note(md_top, md_base, unit.suffix, unit.metres,
-                               (str(units[0] or ""), str(units[1] or ""))))
+        notes.append(cmap.note(md_top, md_base, surfaces=(str(units[0] or ""),
+                                                          str(units[1] or ""))))
     out = []
     for c in cuts:
         add = [n for n, (a, b, _, _) in zip(notes, spans) if a - 1.0 <= c.md_m <= b + 1.0]

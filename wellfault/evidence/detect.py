@@ -168,12 +168,15 @@ def analyse_well(
 def _note_mispicks(tops_cuts: list[FaultCut], mispicks, well) -> list[FaultCut]:
     """Tops cuts with the mis-pick notes of the picks their brackets hold; one warning per
     mis-pick (the picks a tops cut rests on may be the cut's whole evidence)."""
+    from ..geo.precision import lengths_in_text
+
     out = list(tops_cuts)
     for surface, md, note in mispicks:
+        said = lengths_in_text(note, well.depth_unit)  # warnings speak the well's unit
         if not surface:                   # the curves follow none of the picks: no one pick
-            warnings.warn(f"well {well.name!r}: {note}", WellfaultWarning, stacklevel=3)
+            warnings.warn(f"well {well.name!r}: {said}", WellfaultWarning, stacklevel=3)
             continue
-        warnings.warn(f"well {well.name!r}: {note}; check the pick (the curve evidence was "
+        warnings.warn(f"well {well.name!r}: {said}; check the pick (the curve evidence was "
                       "aligned around it)", WellfaultWarning, stacklevel=3)
         for k, c in enumerate(out):
             if c.md_top_m - 1e-6 <= md <= c.md_base_m + 1e-6:
