@@ -220,26 +220,42 @@ def _anchors(picks, column: ReferenceColumn, inp: _Inputs) -> list[_Anchor]:
     return out
 
 
-#: engines of the last type logs and settings, with their prepared arrays (:func:`_engine`)
-_ENGINES: dict = {}
+#: what was made from the last type logs: engines with their prepared arrays, character maps
+_PER_TYPE_LOG: dict = {}
+
+
+def _per_type_log(make, ref: np.ndarray, weights: np.ndarray, *extra):
+    """``make()`` for this type log, these weights and ``extra`` (what is made, and the
+    settings it depends on), made once per process.
+
+    A field screening aligns every well to the same type log: what depends on nothing else
+    (the engine's prepared arrays and the calibration's coarse engines, the type log's
+    character) is made for the first well and reused; a few are kept, by content."""
+    key = (hashlib.blake2b(np.ascontiguousarray(ref).tobytes(), digest_size=16).digest(),
+           ref.shape, tuple(np.asarray(weights, float)), *extra)
+    made = _PER_TYPE_LOG.get(key)
+    if made is None:
+        if len(_PER_TYPE_LOG) >= 8:
+            _PER_TYPE_LOG.pop(next(iter(_PER_TYPE_LOG)))
+        made = _PER_TYPE_LOG[key] = make()
+    return made
 
 
 def _engine(ref: np.ndarray, weights: np.ndarray, kw: dict):
-    """The alignment engine for this type log and these settings, made once per process.
-
-    A field screening aligns every well to the same type log: the engine's prepared arrays
-    (standardised type log, its bounds, the calibration's coarse engines) are made for the
-    first well and reused (they depend on nothing else); a few are kept, by content."""
+    """The alignment engine for this type log and these settings (:func:`_per_type_log`)."""
     from ..align import AlignmentEngine
 
-    key = (hashlib.blake2b(np.ascontiguousarray(ref).tobytes(), digest_size=16).digest(),
-           ref.shape, tuple(np.asarray(weights, float)), tuple(sorted(kw.items())))
-    engine = _ENGINES.get(key)
-    if engine is None:
-        if len(_ENGINES) >= 4:
-            _ENGINES.pop(next(iter(_ENGINES)))
-        engine = _ENGINES[key] = AlignmentEngine(ref.copy(), weights=weights, **kw)
-    return engine
+    return _per_type_log(lambda: AlignmentEngine(ref.copy(), weights=weights, **kw), ref,
+                         weights, "engine", tuple(sorted(kw.items())))
+
+
+def _character(inp: _Inputs):
+    """The type log's character map (:func:`_per_type_log`)."""
+    from ..align.character import CharacterMap
+
+    return _per_type_log(lambda: CharacterMap.from_type_log(inp.ref, inp.s0, inp.ds,
+                                                            weights=inp.weights),
+                         inp.ref, inp.weights, "character", inp.s0, inp.ds)
 
 
 def _align(inp: _Inputs, column: ReferenceColumn, settings: CurveSettings,
@@ -370,7 +386,7 @@ def find_cuts_from_curves(
     the picks: the anchors would only pull the path into detours (spurious jumps), so the
     curves are aligned again without them and the one note stays.
     """
-    from ..align.character import CharacterMap, weigh_confidence
+    from ..align.character import weigh_confidence
 
     bed_dip = bed_dip or BedDip.constant(0.0, 0.0)
     inp = _inputs(well, column, trajectory, bed_dip, settings, picks)
@@ -382,7 +398,7 @@ def find_cuts_from_curves(
     ds, names = inp.ds, inp.names
     conf = np.asarray(alignment.confidence, dtype=float)
     track = inp.track(s, column.unit_at(s), np.where(np.isfinite(s), conf, 0.0))
-    cmap = CharacterMap.from_type_log(inp.ref, inp.s0, ds, weights=inp.weights)
+    cmap = _character(inp)
     end = len(column.type_log) - 1
     cuts: list[FaultCut] = []
     for j in alignment.jumps:
