@@ -6,10 +6,9 @@ import sys
 
 from ..about import CAUTION
 from ..geo.precision import (
-    DECIMALS_HELP,
     DEFAULT_DECIMALS,
     Decimals,
-    decimals_option,
+    add_decimals_option,
     lengths_in_text,
 )
 from .runner import EXIT_OK, _UsageError, _write_csv
@@ -59,8 +58,7 @@ def _add_detect(sub):
     p.add_argument("--output-unit", choices=["m", "ft"],
                    help="length unit of the cut table, the summary and the report (default: "
                         "the LAS file's unit)")
-    p.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS, metavar="N|full",
-                   help=DECIMALS_HELP)
+    add_decimals_option(p)
     p.add_argument("--tolerance", type=float, default=0.15, metavar="FRACTION",
                    help="relative thickness tolerance for tops (default 0.15)")
     p.add_argument("--tolerance-floor", type=float, default=2.0, metavar="METRES",

@@ -15,7 +15,7 @@ import sys
 
 from ..about import CAUTION
 from ..errors import InputError, WellfaultError
-from ..geo.precision import DECIMALS_HELP, DEFAULT_DECIMALS, decimals_option
+from ..geo.precision import add_decimals_option
 from ..geo.units import parse_depth_unit
 from .runner import run_command
 
@@ -69,8 +69,7 @@ def add_screen_parser(subparsers) -> argparse.ArgumentParser:
                    help="length unit of the tables, the summary and the report (default: the "
                         "wells' unit when their LAS files share one, else m; a field in mixed "
                         "units says so)")
-    p.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS, metavar="N|full",
-                   help=DECIMALS_HELP)
+    add_decimals_option(p)
     p.add_argument("--depth-unit", choices=["m", "ft", "usft"],
                    help="depth unit of files that state none (the manifest's depth_unit "
                         "column wins for its well)")

@@ -2,11 +2,7 @@
 
 from __future__ import annotations
 
-from ..geo.precision import (
-    DECIMALS_HELP,
-    DEFAULT_DECIMALS,
-    decimals_option,
-)
+from ..geo.precision import add_decimals_option
 from .runner import EXIT_OK, _write_csv
 
 
@@ -20,8 +16,7 @@ def _add_survey(sub):
                    help="unit of the MD column when its name does not state it")
     p.add_argument("--output-unit", choices=["m", "ft"],
                    help="unit of the output (default: the survey's unit)")
-    p.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS, metavar="N|full",
-                   help=DECIMALS_HELP)
+    add_decimals_option(p)
     p.set_defaults(func=_cmd_survey)
 
 

@@ -34,7 +34,7 @@ import warnings
 from ..about import CAUTION
 from ..errors import InputError, WellfaultError, WellfaultWarning
 from ..geo.precision import (
-    DECIMALS_HELP, DEFAULT_DECIMALS, Decimals, decimals_option, format_length, lengths_in_text,
+    DEFAULT_DECIMALS, Decimals, add_decimals_option, format_length, lengths_in_text,
 )
 from .runner import run_command
 
@@ -80,8 +80,7 @@ def add_watch_parser(subparsers) -> argparse.ArgumentParser:
                    help="depth unit of files that do not state one")
     p.add_argument("--output-unit", choices=["m", "ft"],
                    help="length unit of the output (default: the log's)")
-    p.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS, metavar="N|full",
-                   help=DECIMALS_HELP)
+    add_decimals_option(p)
     p.add_argument("--jsonl", action="store_true",
                    help="write one JSON object per line to stdout instead of text")
     p.add_argument("--once", action="store_true",

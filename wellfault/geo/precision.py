@@ -36,9 +36,9 @@ from dataclasses import dataclass
 from ..errors import InputError
 from .units import DepthUnit, parse_depth_unit
 
-__all__ = ["DECIMALS_HELP", "DEFAULT_DECIMALS", "FULL", "Decimals", "column_decimals",
-           "decimals_option", "format_length", "format_table", "lengths_in_text", "parse_decimals",
-           "round_table", "round_value", "table_text"]
+__all__ = ["DECIMALS_HELP", "DEFAULT_DECIMALS", "FULL", "Decimals", "add_decimals_option",
+           "column_decimals", "decimals_option", "format_length", "format_table",
+           "lengths_in_text", "parse_decimals", "round_table", "round_value", "table_text"]
 
 #: Length decimals by unit suffix: 0.01 m, 0.1 ft.
 LENGTH_DECIMALS = {"m": 2, "ft": 1, "usft": 1}
@@ -240,3 +240,9 @@ def decimals_option(text: str) -> Decimals:
         return parse_decimals(text)
     except InputError as err:
         raise argparse.ArgumentTypeError(str(err).removeprefix("--decimals: ")) from None
+
+
+def add_decimals_option(parser) -> None:
+    """The ``--decimals N|full`` option of every command that writes numbers."""
+    parser.add_argument("--decimals", type=decimals_option, default=DEFAULT_DECIMALS,
+                        metavar="N|full", help=DECIMALS_HELP)
