@@ -41,14 +41,10 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+from _curvecases import reference_data  # benchmarks/: one place says where the real wells are
 
 REPO = Path(__file__).resolve().parents[1]
 DEMO = REPO / "synthetic_wells"
-
-
-def _reference_data() -> Path:
-    env = os.environ.get("WELLFAULT_REFERENCE_DATA")
-    return Path(env) if env else REPO.parent / "shared" / "reference_data"
 
 
 # ------------------------------------------------------------------------------ valid bases
@@ -62,7 +58,7 @@ def _prepare(folder: Path) -> list[dict]:
         if isinstance(row.survey, str) and row.survey:
             b["survey"] = DEMO / row.survey
         bases.append(b)
-    ref = _reference_data()
+    ref = reference_data()
     if not ref.is_dir():
         print(f"reference data not found at {ref}: demo files only", file=sys.stderr)
         return bases
