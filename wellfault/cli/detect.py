@@ -11,7 +11,7 @@ from ..geo.precision import (
     add_decimals_option,
     lengths_in_text,
 )
-from .runner import EXIT_OK, _UsageError, _write_csv
+from .runner import EXIT_OK, _UsageError, _write_csv, where
 
 
 def _add_detect(sub):
@@ -107,12 +107,6 @@ def _summarise(df, unit_suffix: str, decimals: Decimals = DEFAULT_DECIMALS) -> s
     return "\n".join(lines)
 
 
-def _where(path) -> str:
-    from ..io.outputs import is_stream
-
-    return "standard output" if is_stream(path) else str(path)
-
-
 def _cmd_detect(args) -> int:
     from ..evidence.detect import detect_files
     from ..evidence.topcuts import TopsTolerance
@@ -145,7 +139,7 @@ def _cmd_detect(args) -> int:
                           assumptions={"curve evidence": "; ".join(weak) +
                                        " (the type log cannot tell positions apart there)"}
                           if weak else None)
-        print(f"report written to {_where(args.report)}", file=sys.stderr)
+        print(f"report written to {where(args.report)}", file=sys.stderr)
     print(_summarise(df, suffix, args.decimals), file=sys.stderr)
     for note in weak:
         print(f"  {result.well.name}: {note}", file=sys.stderr)

@@ -36,6 +36,13 @@ def _write_csv(df, out, decimals: Decimals):
         sys.stdout.write(table_text(df, decimals))
 
 
+def where(path) -> str:
+    """How a command names an output it wrote: its path, or "standard output"."""
+    from ..io.outputs import is_stream
+
+    return "standard output" if is_stream(path) else str(path)
+
+
 def run(parser: argparse.ArgumentParser, argv: list[str] | None = None) -> int:
     """Parse ``argv`` with ``parser`` and run the chosen command; returns the exit code."""
     try:

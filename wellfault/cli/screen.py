@@ -17,7 +17,7 @@ from ..about import CAUTION
 from ..errors import InputError, WellfaultError
 from ..geo.precision import add_decimals_option
 from ..geo.units import parse_depth_unit
-from .runner import run_command
+from .runner import run_command, where
 
 __all__ = ["add_screen_parser", "cmd_screen", "main"]
 
@@ -131,11 +131,7 @@ def cmd_screen(args) -> int:
         f"{n}.{args.format}" for n in ("cuts", "errors", "wells", "faults", "fault_profiles")),
         file=sys.stderr)
     if args.report:
-        path = _write_report(args, result)
-        from ..io.outputs import is_stream
-
-        where = "standard output" if is_stream(path) else path
-        print(f"report written to {where}", file=sys.stderr)
+        print(f"report written to {where(_write_report(args, result))}", file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_SOME_FAILED if result.n_failed else EXIT_OK
 
