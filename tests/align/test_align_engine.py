@@ -282,6 +282,44 @@ def test_streaming_sample_by_sample_equals_batch():
     assert [j.sample for j in batch.jumps] == [200]
 
 
+def test_reused_move_code_blocks_give_the_same_alignment():
+    """Whole-well alignments give their move codes back for reuse (stream.CODE_BLOCKS,
+    unzeroed): a well aligned after another well has dirtied the pooled blocks gets the same
+    path and jumps as on fresh memory, and a released aligner refuses further use."""
+    from wellfault.align import stream
+
+    well, step, eng, c, s, batch = _turning_well()
+    fresh = eng.stream(center=c, scale=s)               # streaming: blocks of its own
+    fresh.push(well, step)
+    rng = np.random.default_rng(7)
+    eng.align(rng.normal(size=well.shape[0]), step, center=c, scale=s)   # dirties the pool
+    again = eng.align(well, step, center=c, scale=s)
+    assert stream.CODE_BLOCKS._bytes > 0                 # the pool was used
+    assert again.score == batch.score == fresh.current().score
+    np.testing.assert_array_equal(again.path, fresh.current().path)
+    assert again.jumps == batch.jumps
+    spent = stream.StreamingAligner(eng, c, s)
+    spent.push(well[:50], step[:50])
+    spent.release()
+    with pytest.raises(AlignmentError, match="released"):
+        spent.push(well[50:60], step[50:60])
+    with pytest.raises(AlignmentError, match="released"):
+        spent.current()
+
+
+def test_calibration_reads_the_same_path_and_cost_as_a_full_alignment():
+    """The calibration's coarse passes read only the path and the cost, without the jumps'
+    evidence (StreamingAligner._path_and_score / _score): the same numbers as the full
+    result's path and score."""
+    from wellfault.align.stream import StreamingAligner
+
+    well, step, eng, c, s, batch = _turning_well()
+    path, score = eng._whole(well, step, StreamingAligner._path_and_score, c, s)
+    np.testing.assert_array_equal(path, batch.path)
+    assert score == batch.score
+    assert eng._whole(well, step, StreamingAligner._score, c, s) == batch.score
+
+
 def test_streaming_with_prior_and_anchors_equals_batch():
     """Anchors are placed on rows as the rows are made, and jump sources are kept per row:
     pushing sample by sample, with the prior and anchors (one of them contradicting the

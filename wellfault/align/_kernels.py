@@ -175,12 +175,14 @@ def forward_rows(r0, r1, r_first, start_col, c0, c1, xr, lo_t, hi_t, ref_nan, w,
         Er = Ering[slot]
         Fr = Fring[slot]
         cr = codes[r - code_row0, c0:c1]
-        misfit_cols(xr[r], lo_t, hi_t, ref_nan, w, kind, delta, null_misfit, Er[pad:pad + m],
-                    c0, c1)
+        # the misfit on the type log's columns only; the off-log ones are the constant below
+        a0, a1 = max(c0, off_lo), min(c1, off_hi)
+        if a1 > a0:
+            misfit_cols(xr[r], lo_t, hi_t, ref_nan, w, kind, delta, null_misfit,
+                        Er[pad:pad + m], a0, a1)
         # a row without any valid value costs null_misfit everywhere, off the log included
         # (with off_cost there, a long run of nulls would draw the path off the log)
         oc = null_misfit if _all_null(xr[r]) else off_cost
-        a0, a1 = max(c0, off_lo), min(c1, off_hi)
         rowmean[r] = _row_sum(Er, pad + a0, a1 - a0) / (a1 - a0) if a1 > a0 else oc
         if a0 > c0 or a1 < c1:
             eo = Er[pad:pad + m]

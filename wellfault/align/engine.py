@@ -532,9 +532,18 @@ class AlignmentEngine:
         return self._align(x, s, center, scale, evidence=True, anchors=anchors)
 
     def _align(self, x, s, center, scale, evidence: bool, anchors=None) -> Alignment:
+        return self._whole(x, s, lambda al: al._result(evidence), center, scale, anchors)
+
+    def _whole(self, x, s, read, center=None, scale=None, anchors=None):
+        """``read`` of a streaming aligner with the whole well pushed; its move codes are
+        then given back for the next well (the calibration's coarse passes read only the
+        path or the cost: ``StreamingAligner._path_and_score`` / ``_score``)."""
         aligner = StreamingAligner(self, center, scale, anchors)
-        aligner.push(x, s)
-        return aligner._result(evidence)
+        try:
+            aligner.push(x, s)
+            return read(aligner)
+        finally:
+            aligner.release()
 
     def calibrate(self, well: np.ndarray, step: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Well standardisation matched to the part of the type log the well covers.
@@ -629,7 +638,7 @@ class AlignmentEngine:
         searched: the cost is biased towards a larger spread (a shrunk well misfits less
         wherever the path is off by a little), which flattens the evidence for cuts."""
         def cost(c, sc):
-            return float(coarse._align((x - c) / sc, s, None, None, evidence=False).score)
+            return coarse._whole((x - c) / sc, s, StreamingAligner._score)
 
         best = cost(center, scale)
         dc = 0.4
@@ -649,11 +658,12 @@ class AlignmentEngine:
         score = np.inf
         for k in range(int(self.calibrate_passes)):
             if k == 0 and start is not None:
-                al = start[0]._align(start[1], s / f, None, None, evidence=False)
+                path, score = start[0]._whole(start[1], s / f,
+                                              StreamingAligner._path_and_score)
             else:
-                al = coarse._align((x - center) / scale, s / f, None, None, evidence=False)
-            score = float(al.score)
-            pos = al.path * f + 0.5 * (f - 1)
+                path, score = coarse._whole((x - center) / scale, s / f,
+                                             StreamingAligner._path_and_score)
+            pos = path * f + 0.5 * (f - 1)
             on = (pos >= 0) & (pos <= m - 1)
             y = ref_z[np.clip(np.rint(pos), 0, m - 1).astype(np.int64)]
             for c in range(x.shape[1]):

@@ -227,40 +227,27 @@ def _fitted_size(lag_row: np.ndarray, r: int, prev_r: int, next_r: int, W: int) 
     return float(ends[1] - ends[0])
 
 
-def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
-    """The :class:`Alignment` of the first ``nrows`` rows of streaming aligner ``al``.
+def _placed(al, nrows: int, blocks: list):
+    """Traceback and per-sample positions, every cut placed on the well's own samples.
 
-    Without ``evidence`` the cut margins, brackets and confidences are left as NaN (used by
-    the calibration pre-pass, which needs the path only).
-    """
-    from .alignment import Alignment, Jump
-
-    p, e = al._p, al.engine
+    Returns (path, landing, jumped, jump_rows, pos, cuts): ``cuts[q]`` is the sample of the
+    cut of jump row ``jump_rows[q]`` (positions ``pos`` include the ``off``-log margin)."""
+    p = al._p
     n = al.n_samples
-    meta = al._meta.a
-    centre = meta[:nrows, 2]
+    centre = al._meta.a[:nrows, 2]
     path, landing, jumped = _traceback(al, nrows, blocks)
-    score = float(al._rowmin.a[nrows - 1])
-    srow = al._srow.a[:n].copy()
+    srow = al._srow.a[:n]
     spos = al._spos.a[:n]
     lag_row = path - centre                          # reference position minus prediction
     pos = spos + lag_row[srow]
     z = al._z.a[:n]
-    kind, delta, nm = p["kind"], float(e.huber_delta), float(e.null_misfit)
-
+    kind, delta, nm = p["kind"], float(al.engine.huber_delta), float(al.engine.null_misfit)
     jump_rows = np.flatnonzero(jumped)
-    W = int(e.evidence_rows)
-    found = []
+    cuts = []
     for q, r in enumerate(jump_rows):
         r = int(r)
         prev_r = int(jump_rows[q - 1]) if q > 0 else 0
         next_r = int(jump_rows[q + 1]) if q + 1 < jump_rows.size else nrows
-        a = _landing_at_or_after(landing, max(prev_r, r - W), r - 1)
-        zz = _landing_at_or_before(landing, min(next_r - 1, r + W), r)
-        if evidence:
-            margin, lo, hi = _jump_evidence(al, r, a, zz, path, free_start=(q == 0 and a == 0))
-        else:
-            margin, lo, hi = math.nan, r, r
         # place the cut on the well's own samples: split the samples of rows r-K..r+K-1
         # (not crossing the neighbouring jumps) where the misfit with the lag before / after
         # is least — the DP may land a jump a row or two off where the type log is plain
@@ -282,7 +269,46 @@ def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
                 cut = i0 + k_best
             pos[i0:cut] = spos[i0:cut] + lag_row[r - 1]
             pos[cut:i1] = spos[cut:i1] + lag_row[r]
-        cut = min(max(cut, 1), n - 1) if n > 1 else 0
+        cuts.append(min(max(cut, 1), n - 1) if n > 1 else 0)
+    return path, landing, jumped, jump_rows, pos, cuts
+
+
+def path_and_score(al, nrows: int, blocks: list) -> tuple[np.ndarray, float]:
+    """Per-sample reference positions (cuts placed as in :func:`build_alignment`) and the
+    path's cost, without the jumps' evidence and details: what the calibration pre-pass
+    reads (:meth:`~wellfault.align.engine.AlignmentEngine.calibrate`)."""
+    pos = _placed(al, nrows, blocks)[4]
+    return pos - al._p["off"], float(al._rowmin.a[nrows - 1])
+
+
+def build_alignment(al, nrows: int, blocks: list, evidence: bool = True):
+    """The :class:`Alignment` of the first ``nrows`` rows of streaming aligner ``al``.
+
+    Without ``evidence`` the cut margins, brackets and confidences are left as NaN.
+    """
+    from .alignment import Alignment, Jump
+
+    p, e = al._p, al.engine
+    n = al.n_samples
+    path, landing, jumped, jump_rows, pos, cuts = _placed(al, nrows, blocks)
+    score = float(al._rowmin.a[nrows - 1])
+    srow = al._srow.a[:n].copy()
+    lag_row = path - al._meta.a[:nrows, 2]
+    z = al._z.a[:n]
+    kind, delta, nm = p["kind"], float(e.huber_delta), float(e.null_misfit)
+    W = int(e.evidence_rows)
+    found = []
+    for q, r in enumerate(jump_rows):
+        r = int(r)
+        prev_r = int(jump_rows[q - 1]) if q > 0 else 0
+        next_r = int(jump_rows[q + 1]) if q + 1 < jump_rows.size else nrows
+        a = _landing_at_or_after(landing, max(prev_r, r - W), r - 1)
+        zz = _landing_at_or_before(landing, min(next_r - 1, r + W), r)
+        if evidence:
+            margin, lo, hi = _jump_evidence(al, r, a, zz, path, free_start=(q == 0 and a == 0))
+        else:
+            margin, lo, hi = math.nan, r, r
+        cut = cuts[q]
         b_lo = int(np.searchsorted(srow, lo, "left"))
         b_hi = int(np.searchsorted(srow, hi, "left"))
         bracket = (min(b_lo, cut), min(max(b_hi, cut), n - 1))

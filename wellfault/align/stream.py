@@ -13,10 +13,11 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from .._buffers import BlockPool
 from .._buffers import GrowBuffer as _Grow
 from ..errors import AlignmentError, input_error
 from . import _kernels as K
-from .evidence import build_alignment
+from .evidence import build_alignment, path_and_score
 from .resample import max_new_rows, new_resampler_state, resample_chunk
 
 if TYPE_CHECKING:
@@ -66,6 +67,9 @@ def _as_anchors(anchors) -> np.ndarray:
                           "position and tolerance [reference samples]")
     return a[np.argsort(a[:, 0], kind="stable")]
 
+
+#: move-code blocks given back by finished whole-well alignments (:meth:`StreamingAligner.release`)
+CODE_BLOCKS = BlockPool(160 * 2**20)
 
 _NO_ANCHORS = (np.zeros(0, np.int64), np.zeros(0, np.int64), np.zeros(0, np.int64))
 
@@ -143,6 +147,7 @@ class StreamingAligner:
         self._tjump = _Grow((), np.uint8)
         self.n_samples = 0
         self.n_rows = 0
+        self._released = False
 
     # -- forward ------------------------------------------------------------------------------
     def push(self, values, step) -> None:
@@ -157,6 +162,8 @@ class StreamingAligner:
             raise input_error("step must be finite, one value per pushed sample",
                               value=s.shape[0], fix="pass the predicted strat increments")
         n = x.shape[0]
+        if self._released:
+            raise AlignmentError("this aligner was released; start a new one")
         if n == 0:
             return
         z = np.ascontiguousarray((x - self.center) / self.scale if self.engine.standardise
@@ -210,8 +217,8 @@ class StreamingAligner:
             if codes_out is None:
                 b = r // self._block_rows
                 while len(self._blocks) <= b:
-                    self._blocks.append(np.empty((self._block_rows, p["lo_t"].shape[1]),
-                                                 np.uint8))
+                    self._blocks.append(CODE_BLOCKS.take((self._block_rows,
+                                                          p["lo_t"].shape[1])))
                 blk, row0 = self._blocks[b], b * self._block_rows
                 rend = min(r1, row0 + self._block_rows)
             else:
@@ -261,7 +268,7 @@ class StreamingAligner:
         O(rows), whatever was pushed before: what a well being drilled needs at each step.
         None when the tail is too short (fewer than 16 rows pushed, or no such start cell).
         """
-        from .evidence import build_alignment
+        from .evidence import build_alignment, path_and_score
 
         n = self.n_rows
         if n < 16:
@@ -306,7 +313,18 @@ class StreamingAligner:
         """The optimal alignment of all samples pushed so far."""
         return self._result(evidence=True)
 
-    def _result(self, evidence: bool) -> Alignment:
+    def release(self) -> None:
+        """Give the move codes back for reuse (:data:`CODE_BLOCKS`): the aligner is spent, and
+        any later push or result raises."""
+        CODE_BLOCKS.give(self._blocks)
+        self._blocks = []
+        self._released = True
+
+    def _finished(self) -> tuple[int, list]:
+        """(rows, code blocks) of everything pushed so far, the unfinished last row run on
+        copies without committing it."""
+        if self._released:
+            raise AlignmentError("this aligner was released; start a new one")
         if self.n_samples == 0:
             raise AlignmentError("no well samples pushed yet; push(values, step) first")
         p = self._p
@@ -319,5 +337,18 @@ class StreamingAligner:
                                    float(self.engine.min_rate), st, acc, rows, meta,
                                    self._spos.a, self._srow.a, True)
             self._advance(self.n_rows, nrows, extra)
-        blocks = [(i * self._block_rows, b) for i, b in enumerate(self._blocks)] + extra
+        return nrows, [(i * self._block_rows, b) for i, b in enumerate(self._blocks)] + extra
+
+    def _result(self, evidence: bool) -> Alignment:
+        nrows, blocks = self._finished()
         return build_alignment(self, nrows, blocks, evidence)
+
+    def _path_and_score(self) -> tuple[np.ndarray, float]:
+        """Per-sample positions and the path's cost (:func:`~.evidence.path_and_score`)."""
+        nrows, blocks = self._finished()
+        return path_and_score(self, nrows, blocks)
+
+    def _score(self) -> float:
+        """The optimal path's cost, without its traceback."""
+        nrows, _ = self._finished()
+        return float(self._rowmin.a[nrows - 1])
