@@ -264,12 +264,13 @@ def run_curves(field: dict, workers: int) -> dict:
     column = synthetic_column(14, seed=field["column_seed"], curves=("GR",), pad_m=60.0)
     folder = Path(field["folder"])
     t0 = time.perf_counter()
-    c0 = _cpu_tree()
+    c0, s0, f0 = _cpu_tree(), _sys_tree(), _faults_tree()
     res = screen_wells(folder / "manifest.csv", column, type_well=column, curves=["GR"],
                        workers=workers, progress=False, fit=False, neighbours=False)
     dt = time.perf_counter() - t0
     return {"workers": workers, "seconds": dt, "wells_per_s": field["n"] / dt,
-            "cpu_s": _cpu_tree() - c0, "cuts": int(len(res.cuts)),
+            "cpu_s": _cpu_tree() - c0, "sys_s": _sys_tree() - s0,
+            "faults": _faults_tree() - f0, "cuts": int(len(res.cuts)),
             "by_curves": int(res.cuts.method.isin(["curves", "both"]).sum()),
             "failed": int(res.n_failed), "table": res.cuts,
             "separation_s": res.info["timings"].get("separation", 0.0),
@@ -280,6 +281,19 @@ def _cpu_tree() -> float:
     """CPU seconds (user + system) of this process and its finished children."""
     a, b = os.times()[:2], os.times()[2:4]
     return sum(a) + sum(b)
+
+
+def _sys_tree() -> float:
+    """System CPU seconds of this process and its finished children (page faults, I/O)."""
+    t = os.times()
+    return t[1] + t[3]
+
+
+def _faults_tree() -> int:
+    """Minor page faults of this process and its finished children: fresh memory pages
+    (the engine's move codes are reused across wells to avoid them, stream.CODE_BLOCKS)."""
+    return sum(resource.getrusage(w).ru_minflt
+               for w in (resource.RUSAGE_SELF, resource.RUSAGE_CHILDREN))
 
 
 #: where the time of a curve screening goes: (label, function) whose cumulative time is shown
@@ -429,7 +443,9 @@ def _run_curves(args, root: Path, one: float, two: float) -> None:
         base = base or r["seconds"]
         print(f"  curves x{workers}: {r['seconds']:6.1f} s, {r['wells_per_s']:.1f} wells/s, "
               f"speed-up {base / r['seconds']:.2f}, CPU {r['cpu_s']:.1f} s "
-              f"({1000 * r['cpu_s'] / field['n']:.0f} ms per well), cuts {r['cuts']} "
+              f"({1000 * r['cpu_s'] / field['n']:.0f} ms per well, of which system "
+              f"{1000 * r['sys_s'] / field['n']:.0f} ms; {r['faults'] / field['n']:.0f} page "
+              f"faults per well), cuts {r['cuts']} "
               f"({r['by_curves']} by curves), failed {r['failed']}, pass 2b "
               f"{r['separation_s']:.1f} s, main peak RSS {r['maxrss_mb']:.0f} MB", flush=True)
     import pandas as pd
