@@ -31,8 +31,10 @@ from .misfit import _row_sum, misfit_cols
 FOLLOW, FAST, SLOW, JUMP, START = 0, 1, 2, 3, 4
 INF = np.inf
 _INF_BITS = np.int64(0x7FF0000000000000)        # the bits of +inf
-#: width of the column bins whose minima give a row's minimum (without the jump-size prior)
-_CHUNK = 64
+#: width of the column bins whose minima give a row's minimum (without the jump-size prior);
+#: each bin costs a slice per row, so 64 cost the calibration's coarse DPs (about 1,800
+#: columns) 12 % of their time against 256 (0.99 against 1.13 ns per cell); wider gains nothing
+_CHUNK = 256
 
 
 # Hot loops index slices from 0 (``x = a[off:off + m]; x[j]``), never ``a[off + j]``: with an
