@@ -143,5 +143,12 @@ def _cmd_detect(args) -> int:
     print(_summarise(df, suffix, args.decimals), file=sys.stderr)
     for note in weak:
         print(f"  {result.well.name}: {note}", file=sys.stderr)
+    if result.withheld:
+        print(f"{len(result.withheld)} weak candidate cut(s) not reported (not in the table):",
+              file=sys.stderr)
+        for note in result.notes:
+            if note.startswith("candidate cut withheld"):
+                print(f"  {result.well.name}: "
+                      f"{lengths_in_text(note, suffix, args.decimals)}", file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK
