@@ -23,7 +23,7 @@ from ..geo.dip import BedDip
 from ..errors import InputError, SurveyError, WellfaultWarning, input_error
 from .measure import FaultAssumptions
 from .results import FaultCut, cuts_to_frame
-from .topcuts import TopsTolerance, find_cuts_from_tops
+from .topcuts import TopsTolerance, find_cuts_from_tops, tops_intervals
 from ..geo.trajectory import Trajectory
 from ..geo.units import DepthUnit, parse_depth_unit
 
@@ -176,6 +176,11 @@ def analyse_well(
         notes = [n for _, _, n in res.mispicks]
         cuts = combine_evidence(cuts, res.cuts)
         cuts, withheld = _unconfirmed_tops(cuts, res)
+        if picks is not None:
+            cuts, contradicted = _contradicted_by_tops(cuts, tops_intervals(
+                picks.sort_values("md_m", kind="stable"), column, trajectory, bed_dip,
+                expected=expected), tolerance)
+            withheld += contradicted
         withheld = sorted(withheld + res.withheld, key=lambda c: c.md_m)
         notes += res.weak + [_withheld_note(c) for c in withheld]
         track, alignment = res.track, res.alignment
@@ -197,6 +202,45 @@ def _unconfirmed_tops(cuts: list[FaultCut], res) -> tuple[list[FaultCut], list[F
                 "without a jump")))
         else:
             keep.append(c)
+    return keep, out
+
+
+def _contradicted_by_tops(cuts: list[FaultCut], intervals: pd.DataFrame,
+                          tolerance: TopsTolerance) -> tuple[list[FaultCut], list[FaultCut]]:
+    """(reported, withheld): curves-only cuts between two picks whose interval the tops
+    contradict are withheld, the reason in their notes.
+
+    Between two consecutive picks the tops measure the net stratigraphic jump (expected
+    minus drilled interval, :func:`~wellfault.evidence.topcuts.tops_intervals`); the curve
+    cuts there (``curves`` and ``both``) add up to the curves' net jump. When the two differ
+    by more than the tops tolerance, the picks rule the curves' reading out (the picks are
+    where they are; a net jump they do not see is a hop of the alignment to a look-alike),
+    and the curves-only cuts there are withheld. On the low-character calibration wells
+    (seeds 10000+, 960 wells with tops) such cuts were 19 false and none real; a cut of the
+    curves the tops do not contradict (below their tolerance, or two faults that cancel) is
+    kept.
+    """
+    if not len(intervals) or not any(c.method == "curves" for c in cuts):
+        return cuts, []
+    top, base = intervals["md_top_m"].to_numpy(float), intervals["md_base_m"].to_numpy(float)
+    seen = intervals["delta_s_m"].to_numpy(float)
+    allowed = tolerance.allowed(intervals["spread_m"].to_numpy(float))
+    md = np.array([c.md_m for c in cuts])
+    curve_ds = np.array([c.delta_s_m if c.method != "tops" else 0.0 for c in cuts])
+    keep, out = [], []
+    for c in cuts:
+        k = np.flatnonzero((top < c.md_m) & (c.md_m <= base))
+        if c.method == "curves" and k.size:
+            k = int(k[0])
+            net = float(curve_ds[(top[k] < md) & (md <= base[k])].sum())
+            if abs(net - seen[k]) > allowed[k]:
+                out.append(dataclasses.replace(c, notes=c.notes + (
+                    f"; withheld: the picks {intervals['surface_above'].iloc[k]} and "
+                    f"{intervals['surface_below'].iloc[k]} show a net jump of "
+                    f"{seen[k]:+.1f} m TST between them, the curves {net:+.1f} m "
+                    f"(tolerance {allowed[k]:.1f} m)")))
+                continue
+        keep.append(c)
     return keep, out
 
 
