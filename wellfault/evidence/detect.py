@@ -205,6 +205,11 @@ def _unconfirmed_tops(cuts: list[FaultCut], res) -> tuple[list[FaultCut], list[F
     return keep, out
 
 
+#: Relative error of a curve cut's |Δs| allowed when the tops check it (bench_curves.py goal:
+#: |Δs| error <= max(10 %, 1 m)).
+_CURVE_DS_ERROR = 0.1
+
+
 def _contradicted_by_tops(cuts: list[FaultCut], intervals: pd.DataFrame,
                           tolerance: TopsTolerance) -> tuple[list[FaultCut], list[FaultCut]]:
     """(reported, withheld): curves-only cuts between two picks whose interval the tops
@@ -213,7 +218,9 @@ def _contradicted_by_tops(cuts: list[FaultCut], intervals: pd.DataFrame,
     Between two consecutive picks the tops measure the net stratigraphic jump (expected
     minus drilled interval, :func:`~wellfault.evidence.topcuts.tops_intervals`); the curve
     cuts there (``curves`` and ``both``) add up to the curves' net jump. When the two differ
-    by more than the tops tolerance, the picks rule the curves' reading out (the picks are
+    by more than both measurements' tolerances — the tops tolerance of the interval plus a
+    tenth of the curve cuts' summed |Δs| there (the curves measure |Δs| to about 10 %, the
+    goal of bench_curves.py) — the picks rule the curves' reading out (the picks are
     where they are; a net jump they do not see is a hop of the alignment to a look-alike),
     and the curves-only cuts there are withheld. On the low-character calibration wells
     (seeds 10000+, 960 wells with tops) such cuts were 19 false and none real; a cut of the
@@ -232,13 +239,15 @@ def _contradicted_by_tops(cuts: list[FaultCut], intervals: pd.DataFrame,
         k = np.flatnonzero((top < c.md_m) & (c.md_m <= base))
         if c.method == "curves" and k.size:
             k = int(k[0])
-            net = float(curve_ds[(top[k] < md) & (md <= base[k])].sum())
-            if abs(net - seen[k]) > allowed[k]:
+            inside = curve_ds[(top[k] < md) & (md <= base[k])]
+            net = float(inside.sum())
+            tol = float(allowed[k]) + _CURVE_DS_ERROR * float(np.abs(inside).sum())
+            if abs(net - seen[k]) > tol:
                 out.append(dataclasses.replace(c, notes=c.notes + (
                     f"; withheld: the picks {intervals['surface_above'].iloc[k]} and "
                     f"{intervals['surface_below'].iloc[k]} show a net jump of "
                     f"{seen[k]:+.1f} m TST between them, the curves {net:+.1f} m "
-                    f"(tolerance {allowed[k]:.1f} m)")))
+                    f"(tolerance {tol:.1f} m)")))
                 continue
         keep.append(c)
     return keep, out
