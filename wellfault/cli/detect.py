@@ -75,9 +75,9 @@ def add_separation_option(p) -> None:
     """The ``--max-separation`` option of the commands that align curves."""
     p.add_argument("--max-separation", type=float, metavar="LENGTH",
                    help="largest plausible fault separation (TST, input depth unit): a larger "
-                        "jump of the curve alignment needs overwhelming evidence and is "
-                        "flagged in its row (default: from the type log's thickness and the "
-                        "tops)")
+                        "jump of the curve alignment needs overwhelming evidence (reported "
+                        "at confidence >= 0.9, flagged in its row; else listed as a withheld "
+                        "candidate) (default: from the type log's thickness and the tops)")
 
 
 def _summarise(df, unit_suffix: str, decimals: Decimals = DEFAULT_DECIMALS) -> str:

@@ -46,7 +46,7 @@ class CurveSettings:
 
     * ``max_separation_m`` — the largest fault separation |Δs| the field makes plausible (TST):
       a larger jump of the alignment costs more the larger it is (the engine's jump-size
-      prior, ``jump_free``), needs overwhelming curve evidence and is flagged in its row's
+      prior, ``jump_free``), needs overwhelming curve evidence (``min_confidence_beyond``) and is flagged in its row's
       notes. None (default): :func:`plausible_separation_m` from the inputs (the type log's
       thickness, and in :func:`wellfault.evidence.detect.analyse_well` the separations the tops show);
       ``inf`` turns the prior off.
