@@ -83,32 +83,40 @@ def test_pure_noise_type_log_gives_no_cut_with_confidence_half(refdata):
     assert all(c < 0.5 for c in conf)
 
 
-def test_detect_command_says_where_the_curve_evidence_is_weak(refdata, tmp_path, capsys):
-    """`wellfault detect` with a low-character type well: the weak spans are printed and put in
-    the report. The type well is vertical through the dipping beds, logged with the degraded
-    type log (MD = 1000 m + s / cos δ: a vertical hole drills TST = TVD cos δ)."""
-    from wellfault.cli.app import main
+def _type_well_files(lg, sc, folder):
+    """The type well and its tops as files (vertical through the dipping beds, logged with the
+    degraded type log: MD = 1000 m + s / cos δ, a vertical hole drilling TST = TVD cos δ) and
+    the well's LAS and survey; returns the bed dip as text."""
     from wellfault.io import write_las
     from wellfault.io.writers import write_survey, write_tops
     from wellfault.geo.well import Well
 
-    lg = _low("Wellington", str(refdata), 506)
-    sc = low_character_scenario(506, lg)
     dip, azi = sc.bed_dip.attitude_at(np.array([0.0]))
     dip, azi = float(np.ravel(dip)[0]), float(np.ravel(azi)[0])
     tl = lg.type_log.type_log
     md = 1000.0 + tl.index.to_numpy(float) / np.cos(np.radians(dip))
     type_well = Well("TYPE-1", pd.DataFrame({"GR": tl["GR"].to_numpy()},
                                             index=pd.Index(md, name="md_m")), "m")
-    write_las(type_well, tmp_path / "type.las")
+    write_las(type_well, folder / "type.las")
     write_tops(pd.DataFrame({"well": "TYPE-1", "surface": list(lg.type_log.names),
                              "md_m": 1000.0 + lg.type_log.s_m / np.cos(np.radians(dip))}),
-               tmp_path / "type_tops.csv")
-    write_las(sc.well, tmp_path / "well.las")
-    write_survey(sc.trajectory.stations, tmp_path / "survey.csv")
+               folder / "type_tops.csv")
+    write_las(sc.well, folder / "well.las")
+    write_survey(sc.trajectory.stations, folder / "survey.csv")
+    return f"{dip:.3f}/{azi:.3f}"
+
+
+def test_detect_command_says_where_the_curve_evidence_is_weak(refdata, tmp_path, capsys):
+    """`wellfault detect` with a low-character type well: the weak spans are printed and put in
+    the report."""
+    from wellfault.cli.app import main
+
+    lg = _low("Wellington", str(refdata), 506)
+    sc = low_character_scenario(506, lg)
+    dip = _type_well_files(lg, sc, tmp_path)
     report = tmp_path / "well.html"
     code = main(["detect", str(tmp_path / "well.las"), "--survey", str(tmp_path / "survey.csv"),
-                 "--dip", f"{dip:.3f}/{azi:.3f}", "--type-well", str(tmp_path / "type.las"),
+                 "--dip", dip, "--type-well", str(tmp_path / "type.las"),
                  "--type-tops", str(tmp_path / "type_tops.csv"), "--out",
                  str(tmp_path / "cuts.csv"), "--report", str(report)])
     assert code == 0
@@ -153,13 +161,14 @@ def test_weak_candidates_are_withheld_but_kept(refdata):
     print(f"\n36 low-character wells: {withheld} candidate cut(s) withheld")
 
 
-def test_tops_cut_the_curves_cross_without_a_jump_is_withheld_but_noted(refdata):
+def test_tops_cut_the_curves_cross_without_a_jump_is_withheld_but_noted(refdata, tmp_path,
+                                                                       capsys):
     """A mis-pick (common practice: the commonest cause of a false tops cut): the last pick of
     an unfaulted low-character well moved down so that its interval is 8 % beyond the tops
     tolerance (tops confidence about 0.15). Tops alone report a repeated section; with the
     curves, which correlate across the bracket without a jump, the cut is withheld
     (detect.TOPS_UNCONFIRMED_MIN) and stays visible in ``withheld`` and in the notes, beside
-    the "possible mis-pick" note."""
+    the "possible mis-pick" note; `wellfault detect` lists it on stderr, not in the table."""
     from wellfault.evidence.curve_settings import CurveSettings
     from wellfault.evidence.detect import TOPS_UNCONFIRMED_MIN, analyse_well
     from wellfault.evidence.topcuts import TopsTolerance, find_cuts_from_tops
@@ -184,3 +193,20 @@ def test_tops_cut_the_curves_cross_without_a_jump_is_withheld_but_noted(refdata)
     assert "without a jump" in an.withheld[0].notes
     assert any(n.startswith("candidate cut withheld (tops): repeated section") for n in an.notes)
     assert any(n.startswith("possible mis-pick") for n in an.notes)
+
+    from wellfault.about import CAUTION
+    from wellfault.cli.app import main
+    from wellfault.io.writers import write_tops
+
+    dip = _type_well_files(lg, sc, tmp_path)
+    write_tops(tops.assign(well=str(sc.well.name)), tmp_path / "tops.csv")
+    code = main(["detect", str(tmp_path / "well.las"), "--survey", str(tmp_path / "survey.csv"),
+                 "--dip", dip, "--tops", str(tmp_path / "tops.csv"), "--type-well",
+                 str(tmp_path / "type.las"), "--type-tops", str(tmp_path / "type_tops.csv"),
+                 "--out", str(tmp_path / "cuts.csv")])
+    assert code == 0
+    err = capsys.readouterr().err
+    assert "no fault cut found" in err and CAUTION in err and "possible mis-pick" in err
+    assert "1 weak candidate cut(s) not reported" in err
+    assert "candidate cut withheld (tops): repeated section at MD" in err
+    assert len(pd.read_csv(tmp_path / "cuts.csv")) == 0
