@@ -78,6 +78,8 @@ def run_case(case, methods=("engine",), settings=None):
         dt = time.perf_counter() - t0
         if src == dst:
             rows, det = score_scenario(res.cuts, sc)
+            if len(rows):
+                rows["block_m"] = block_section_m(sc.truth)
             if m == "tops" and len(rows):      # counted where the cut lies between two picks
                 md = sc.tops["md_m"].dropna()
                 rows = rows[(rows["true_md_m"] > md.min()) & (rows["true_md_m"] < md.max())]
@@ -96,6 +98,21 @@ def run_case(case, methods=("engine",), settings=None):
         det["run"] = [min(c.extra.get("rows_above", np.nan), c.extra.get("rows_below", np.nan))
                       for c in res.cuts]
         out[m] = (rows, det, dt)
+    return out
+
+
+def block_section_m(truth: pd.DataFrame) -> np.ndarray:
+    """Per true cut (truth order), the section [m TST] of the fault block between it and its
+    nearest neighbouring cut along the well (NaN for a lone cut): what the alignment has to
+    place between two close faults."""
+    s_above = truth["s_above_m"].to_numpy(float)
+    s_below = truth["s_below_m"].to_numpy(float)
+    order = np.argsort(truth["md_m"].to_numpy(float))
+    out = np.full(len(truth), np.nan)
+    for i, k in enumerate(order):
+        sides = [abs(s_above[order[i + 1]] - s_below[k])] if i + 1 < order.size else []
+        sides += [abs(s_above[k] - s_below[order[i - 1]])] if i > 0 else []
+        out[k] = min(sides) if sides else np.nan
     return out
 
 

@@ -70,8 +70,9 @@ def calibration_cases(per_log: int) -> list:
 def _one(case):
     from wellfault.evidence.curve_settings import CurveSettings
 
-    # every jump the curves would report, the confidence floor aside (it is set from this fit)
-    return cc.run_case(case, ("engine",), CurveSettings.make(min_confidence=0.0))["engine"][1]
+    # every jump the curves would report, the confidence floors aside (they read this fit)
+    return cc.run_case(case, ("engine",), CurveSettings.make(
+        min_confidence=0.0, min_confidence_beyond=0.0))["engine"][1]
 
 
 def features(det: pd.DataFrame) -> np.ndarray:

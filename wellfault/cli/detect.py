@@ -75,9 +75,9 @@ def add_separation_option(p) -> None:
     """The ``--max-separation`` option of the commands that align curves."""
     p.add_argument("--max-separation", type=float, metavar="LENGTH",
                    help="largest plausible fault separation (TST, input depth unit): a larger "
-                        "jump of the curve alignment needs overwhelming evidence and is "
-                        "flagged in its row (default: from the type log's thickness and the "
-                        "tops)")
+                        "jump of the curve alignment needs overwhelming evidence (reported "
+                        "at confidence >= 0.9, flagged in its row; else listed as a withheld "
+                        "candidate) (default: from the type log's thickness and the tops)")
 
 
 def _summarise(df, unit_suffix: str, decimals: Decimals = DEFAULT_DECIMALS) -> str:
@@ -143,5 +143,12 @@ def _cmd_detect(args) -> int:
     print(_summarise(df, suffix, args.decimals), file=sys.stderr)
     for note in weak:
         print(f"  {result.well.name}: {note}", file=sys.stderr)
+    if result.withheld:
+        print(f"{len(result.withheld)} weak candidate cut(s) not reported (not in the table):",
+              file=sys.stderr)
+        for note in result.notes:
+            if note.startswith("candidate cut withheld"):
+                print(f"  {result.well.name}: "
+                      f"{lengths_in_text(note, suffix, args.decimals)}", file=sys.stderr)
     print(CAUTION, file=sys.stderr)
     return EXIT_OK

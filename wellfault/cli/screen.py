@@ -49,7 +49,7 @@ def add_screen_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--max-separation", type=float, metavar="LENGTH",
                    help="largest plausible fault separation (TST, in --depth-unit, metres "
                         "without it) for the curve alignment; larger jumps need overwhelming "
-                        "evidence and are flagged (default: from the type log and each "
+                        "evidence (confidence >= 0.9) and are flagged (default: from the type log and each "
                         "well's tops, then from the field's own cuts in a second reading)")
     p.add_argument("--dip", metavar="DIP/AZI",
                    help="bed dip for wells without their own in the manifest, e.g. 12/075")

@@ -46,7 +46,7 @@ class CurveSettings:
 
     * ``max_separation_m`` — the largest fault separation |Δs| the field makes plausible (TST):
       a larger jump of the alignment costs more the larger it is (the engine's jump-size
-      prior, ``jump_free``), needs overwhelming curve evidence and is flagged in its row's
+      prior, ``jump_free``), needs overwhelming curve evidence (``min_confidence_beyond``) and is flagged in its row's
       notes. None (default): :func:`plausible_separation_m` from the inputs (the type log's
       thickness, and in :func:`wellfault.evidence.detect.analyse_well` the separations the tops show);
       ``inf`` turns the prior off.
@@ -62,8 +62,15 @@ class CurveSettings:
 
     ``min_confidence`` is the least calibrated confidence of a reported cut (default 0.01: a
     jump the evidence gives under 1 % of being real — in practice a well that does not
-    correlate with the type log there, e.g. rock the type log does not cover — is left in
-    ``CurveResult.alignment.jumps`` but not reported).
+    correlate with the type log there, e.g. rock the type log does not cover — is not
+    reported). ``min_confidence_beyond`` is the least confidence of a cut larger than the
+    plausible separation (default 0.9, "overwhelming": on the calibration set of
+    benchmarks/calibrate_confidence.py, seeds 10000+, 28 cuts beyond 250 m were false, the
+    most confident at 0.78, against 1 real one, at 0.32 and with its size wrong). A cut under
+    either level is not lost: it is kept, measured, in ``CurveResult.withheld`` with the
+    reason in its notes (and in ``WellAnalysis.notes``); a higher floor trades real cuts for
+    fewer false ones (on low-character calibration wells, cuts under 0.1 were 13 real of
+    two faults close together — short runs between them — against none false).
     """
 
     curves: tuple[tuple[str, float], ...] = (("GR", 1.0),)
@@ -76,12 +83,14 @@ class CurveSettings:
     max_separation_m: float | None = None
     pick_tolerance_m: float = 2.0
     shared: bool = False
+    min_confidence_beyond: float = 0.9
 
     @classmethod
     def make(cls, curves=None, *, min_jump_m: float = 2.0, off_log_m: float = 150.0,
              calibrate_window_m: float = 9.0, min_confidence: float = 0.01,
              gap_m: float = 2.0, max_separation_m: float | None = None,
-             pick_tolerance_m: float = 2.0, **engine) -> CurveSettings:
+             pick_tolerance_m: float = 2.0, min_confidence_beyond: float = 0.9,
+             **engine) -> CurveSettings:
         if curves is None:
             spec: tuple[tuple[str, float], ...] = (("GR", 1.0),)
         elif isinstance(curves, dict):
@@ -99,10 +108,16 @@ class CurveSettings:
                              "leave it out to derive it from the inputs")
         if not float(pick_tolerance_m) >= 0:
             raise InputError(f"the pick tolerance must be >= 0 m (got {pick_tolerance_m!r})")
+        for name, v in (("min_confidence", min_confidence),
+                        ("min_confidence_beyond", min_confidence_beyond)):
+            if not 0.0 <= float(v) <= 1.0:
+                raise InputError(f"{name} must lie in [0, 1] (got {v!r}); e.g. 0.5 reports "
+                                 "only cuts the evidence makes more likely real than not")
         return cls(spec, float(min_jump_m), tuple(sorted(engine.items())), float(off_log_m),
                    float(calibrate_window_m), float(min_confidence), float(gap_m),
                    None if max_separation_m is None else float(max_separation_m),
-                   float(pick_tolerance_m), shared=curves is None)
+                   float(pick_tolerance_m), shared=curves is None,
+                   min_confidence_beyond=float(min_confidence_beyond))
 
     def engine_kwargs(self, ds_m: float, column_m: float | None = None) -> dict:
         """Keyword arguments for the engine on a type log of step ``ds_m`` and thickness

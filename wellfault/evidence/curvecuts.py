@@ -53,6 +53,23 @@ class CurveResult:
     #: the plausible separation the jump-size prior used [m TST] (inf: no prior)
     max_separation_m: float = math.inf
     weak: list[str] = dataclasses.field(default_factory=list)  # "curve evidence weak ..." notes
+    #: jumps measured as cuts but not reported: confidence under ``settings.min_confidence``,
+    #: or beyond the plausible separation under ``settings.min_confidence_beyond``; the
+    #: reason ends their notes
+    withheld: list[FaultCut] = dataclasses.field(default_factory=list)
+    #: MD of every jump of the alignment of at least ``settings.min_jump_m`` [m], reported or
+    #: not, off the type log included (where the curves saw a break)
+    jump_md_m: tuple[float, ...] = ()
+
+    def crossed_without_jump(self, md_top_m: float, md_base_m: float) -> bool:
+        """Whether the curves placed the well on the type log all the way from ``md_top_m``
+        to ``md_base_m`` without a jump: there they correlate with the type log and see no
+        cut."""
+        md = self.track["md_m"].to_numpy(float)
+        inside = (md >= md_top_m) & (md <= md_base_m)
+        if not inside.any() or not np.isfinite(self.track["s_m"].to_numpy(float)[inside]).all():
+            return False
+        return not any(md_top_m <= m <= md_base_m for m in self.jump_md_m)
 
 
 def gap_fillers(md_above: float, md_below: float, nominal_m: float, gap_m: float
@@ -372,7 +389,9 @@ def find_cuts_from_curves(
     A jump of the alignment smaller than ``settings.min_jump_m`` is not a cut, nor is a jump
     with either side off the type log or on its first or last sample (the well leaves the
     strat range the type log covers there; the jump's size is unknown), nor one whose
-    confidence is under ``settings.min_confidence``. Each cut's ``extra``
+    confidence is under ``settings.min_confidence`` (or, for a jump larger than the plausible
+    separation, under ``settings.min_confidence_beyond``): those are measured and kept in
+    ``CurveResult.withheld``, the reason in their notes. Each cut's ``extra``
     holds the engine's evidence: ``margin``, ``correlation``, ``rows_above``, ``rows_below``,
     ``beyond_plausible`` (True for a cut larger than the plausible separation, which its
     notes flag too), ``character`` (the type log's character at the cut,
@@ -401,10 +420,13 @@ def find_cuts_from_curves(
     cmap = _character(inp)
     end = len(column.type_log) - 1
     cuts: list[FaultCut] = []
+    withheld: list[FaultCut] = []
+    jump_md: list[float] = []
     for j in alignment.jumps:
         ds_m = float(j.size) * ds
         if abs(ds_m) < settings.min_jump_m:
             continue
+        jump_md.append(float(inp.md[int(j.sample)]))
         ends = (float(j.j_before), float(j.j_after))
         if getattr(j, "off_log", False) or not all(0.5 <= v <= end - 0.5 for v in ends):
             continue
@@ -412,15 +434,14 @@ def find_cuts_from_curves(
             continue
         kappa = float(np.min(cmap.at(inp.s0 + np.asarray(ends) * ds)))
         confidence = weigh_confidence(float(j.confidence), kappa)
-        if not confidence >= settings.min_confidence:
-            continue
+        beyond = abs(ds_m) > plausible
+        floor = max(settings.min_confidence, settings.min_confidence_beyond if beyond else 0.0)
         first, last = (int(v) for v in j.bracket)
         cut = _measured(well, column, trajectory, bed_dip, assumptions, picks, inp,
                         sample=int(j.sample), first=first, last=last, delta_s_m=ds_m,
                         j_before=ends[0], j_after=ends[1], confidence=confidence,
                         method="curves",
                         note=f"curves {', '.join(names)} aligned to the type log")
-        beyond = abs(ds_m) > plausible
         if beyond:
             cut = dataclasses.replace(cut, notes=cut.notes + (
                 f"; jump of {abs(ds_m):.0f} m TST is beyond the plausible separation "
@@ -429,9 +450,15 @@ def find_cuts_from_curves(
                          rows_above=int(j.rows_above), rows_below=int(j.rows_below),
                          beyond_plausible=bool(beyond), character=kappa,
                          engine_confidence=float(j.confidence))
-        cuts.append(cut)
+        if confidence >= floor:
+            cuts.append(cut)
+        else:
+            withheld.append(dataclasses.replace(cut, notes=cut.notes + (
+                f"; withheld: confidence {confidence:.2f} under {floor:g}"
+                + (" (beyond the plausible separation)" if beyond else ""))))
     cuts, weak = _character_notes(cuts, cmap, track, column)
-    return CurveResult(cuts, track, alignment, names, mis, plausible, weak)
+    return CurveResult(cuts, track, alignment, names, mis, plausible, weak, withheld,
+                       tuple(jump_md))
 
 
 #: Least strat [m] the well must be placed on the type log either side of a cut: a side placed
