@@ -124,16 +124,26 @@ def _with_tops(tops):
 
         from wellfault.evidence.detect import analyse_well
 
-        res = analyse_well(well, col, tops=tops, trajectory=trajectory, bed_dip=bed_dip,
-                           curves=settings)
+        # a well that reaches no picked surface has no tops to give: curves alone, as a user
+        # would run it
+        res = analyse_well(well, col, tops=tops if len(tops) else None, trajectory=trajectory,
+                           bed_dip=bed_dip, curves=settings)
         return SimpleNamespace(cuts=res.records)
     return run
 
 
-def low_cases(label: str, log_seeds, seeds, **kw):
-    """Cases on the low-character type logs ``log_seeds`` of each real log, wells ``seeds``."""
-    return [(label, low_name(log, k), low_name(log, k), int(s), kw)
-            for log in REAL for k in log_seeds for s in seeds]
+def low_cases(label: str, log_seeds, seeds, *, stride: int = 0, **kw):
+    """Cases on the low-character type logs ``log_seeds`` of each real log, wells ``seeds``.
+
+    With ``stride`` the wells of the i-th degraded log are ``seeds`` + i * stride: each degraded
+    log gets its own well geometries (the same seeds on every degraded log of a real log draw
+    the same wells, so the cases are fewer independent samples than they look)."""
+    seeds = list(seeds)
+    if stride and len(seeds) > stride:
+        raise ValueError(f"{len(seeds)} wells per degraded log: at most {stride} with "
+                         f"stride {stride}")
+    return [(label, low_name(log, k), low_name(log, k), int(s) + i * stride, kw)
+            for log in REAL for i, k in enumerate(log_seeds) for s in seeds]
 
 
 def cases(label: str, logs, seeds, dst=None, **kw):

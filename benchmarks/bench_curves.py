@@ -38,7 +38,9 @@ Times are wall seconds per well of each method alone on this machine (the header
 Low-character type logs (the issue "Curve evidence on logs with little character"): each real
 log degraded ``--low-logs`` times (wellfault.synth.low_character.low_character_log: thick shales and
 monotonous carbonates, casing attenuation, old-tool response, counting noise; degradation seeds
-0+) with ``--low`` wells each (seeds 0+; throws 5-110 m, |Δs| about 5-140 m), printed beside the
+0+) with ``--low`` wells each (at most 100; seeds 40000 + 100 k + 0.. on the k-th degraded log,
+its own wells; two-close-fault wells 30000 + 100 k + 0..; throws 5-110 m, |Δs| about
+5-140 m), printed beside the
 character-rich figures of the same run: curves alone; curves with tops (``wellfault detect
 --tops --type-well``; recall counted where the cut lies between the first and last pick);
 two faults 10-60 m apart; false cuts with confidence >= 0.9 and with |Δs| beyond the plausible
@@ -185,9 +187,11 @@ def main(argv=None) -> None:
     unrel = cc.cases("unrelated", cc.REAL, range(20000, 20000 + a.stress), dst=cc.unrelated)
     close = cc.cases("close", cc.REAL, range(21000, 21000 + a.stress), min_faults=2,
                      fault_gap_m=(10.0, 60.0), fault_clearance_m=15.0)
-    low = cc.low_cases("low", range(a.low_logs), range(a.low))
+    # each degraded log its own wells (stride 100): until 2026-12-05 every degraded log of a real
+    # log took the same wells 0.. (and the close-fault wells 30000..), 30 geometries in 90 wells
+    low = cc.low_cases("low", range(a.low_logs), range(40000, 40000 + a.low), stride=100)
     lowclose = cc.low_cases("lowclose", range(a.low_logs), range(30000, 30000 + a.low // 2),
-                            close_faults=True)
+                            stride=100, close_faults=True)
     kw = {} if a.max_separation is None else {"max_separation_m": a.max_separation}
     jobs = [(c, methods, kw) for c in real + inv]
     jobs += [(c, ("engine",), kw) for c in unrel + close]
