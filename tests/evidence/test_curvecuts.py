@@ -187,6 +187,56 @@ def test_combine_evidence_with_nothing_from_one_side():
     assert combine_evidence([], []) == []
 
 
+def test_combine_evidence_leaves_tops_cuts_kept_apart_as_they_are():
+    tops = [_cut("tops", 1020.0, 1000.0, 1040.0, 25.0, 0.8)]
+    curves = [_cut("curves", 1012.3, 1012.0, 1013.0, 24.1, 0.9)]
+    out = combine_evidence(tops, curves, apart={0})
+    assert [c.method for c in out] == ["curves", "tops"]
+    assert out[1] == tops[0]
+
+
+def _interval(top, base, seen, spread):
+    return pd.DataFrame({"surface_above": ["A"], "surface_below": ["B"], "md_top_m": [top],
+                         "md_base_m": [base], "expected_m": [spread], "spread_m": [spread],
+                         "drilled_m": [spread - seen], "delta_s_m": [seen]})
+
+
+def test_tops_and_curves_that_disagree_between_two_picks_are_not_merged():
+    """Between two picks the tops measure the net jump (expected minus drilled interval,
+    methods.md §7); a curve jump that explains only part of it is a hop of the alignment, not
+    the cut: the tops cut keeps its bracket and size (noted) and the curve cut is withheld.
+    Where the two agree within both tolerances they merge as before (common practice: a pick
+    pair is the more direct measurement of the net separation)."""
+    from wellfault.evidence.detect import _IntervalChecks
+    from wellfault.evidence.topcuts import TopsTolerance
+
+    intervals = _interval(3178.1, 3437.2, 101.8, 250.0)   # allowed: 0.15 * 250 + 2 = 39.5 m
+    tops = [_cut("tops", 3307.0, 3178.1, 3437.2, 101.8, 0.9)]
+    partial = [_cut("curves", 3318.3, 3317.0, 3319.0, 39.1, 0.95)]
+    checks = _IntervalChecks.of(intervals, TopsTolerance(), partial)
+    assert checks.tol[0] == pytest.approx(39.5 + 3.91)
+    kept, apart = checks.tops_kept_apart(tops)
+    assert apart == {0} and "placed by the tops alone" in kept[0].notes
+    assert "+101.8 m TST" in kept[0].notes and "+39.1 m" in kept[0].notes
+    merged = combine_evidence(kept, partial, apart=apart)
+    reported, withheld = checks.withhold_contradicted(merged)
+    assert [(c.method, c.delta_s_m) for c in reported] == [("tops", 101.8)]
+    assert [c.md_m for c in withheld] == [3318.3] and "; withheld: the picks A and B" in \
+        withheld[0].notes
+
+    agreeing = [_cut("curves", 3318.3, 3317.0, 3319.0, 80.0, 0.95)]   # 21.8 m off, within
+    checks = _IntervalChecks.of(intervals, TopsTolerance(), agreeing)
+    kept, apart = checks.tops_kept_apart(tops)
+    assert apart == set() and kept == tops
+    reported, withheld = checks.withhold_contradicted(combine_evidence(kept, agreeing))
+    assert [c.method for c in reported] == ["both"] and withheld == []
+
+    outside = [_cut("curves", 3500.0, 3499.0, 3501.0, 39.1, 0.95)]    # not between the picks
+    checks = _IntervalChecks.of(intervals, TopsTolerance(), outside)
+    assert checks.tops_kept_apart(tops) == (tops, set())       # nothing of the curves to merge
+    assert checks.withhold_contradicted(outside) == (outside, [])
+
+
 # -- curve specs and settings --------------------------------------------------------------------
 @pytest.mark.parametrize(("text", "want"), [("GR", ("GR", 1.0)), ("RHOB:0.5", ("RHOB", 0.5)),
                                             (" nphi : 2 ", ("nphi", 2.0))])

@@ -9,7 +9,9 @@ the well's stratigraphic position track (``md_m, s_m, unit, confidence``), the s
 
 :func:`combine_evidence` merges cuts from tops and from curves: a tops cut whose bracket holds a
 curve cut of the same sense becomes one ``method="both"`` cut, placed and measured by the curves
-(a log pins the cut to the sample; tops only bracket it) with the tops' figures in its notes.
+(a log pins the cut to the sample; tops only bracket it) with the tops' figures in its notes,
+unless the caller keeps that tops cut apart (``apart``: the curves' net jump between the two
+picks disagrees with the tops', :class:`wellfault.evidence.detect._IntervalChecks`).
 """
 
 from __future__ import annotations
@@ -513,9 +515,14 @@ def _same_sense(a: FaultCut, b: FaultCut) -> bool:
     return np.sign(a.delta_s_m) == np.sign(b.delta_s_m)
 
 
-def combine_evidence(tops_cuts: list[FaultCut], curve_cuts: list[FaultCut]) -> list[FaultCut]:
-    """Merge tops and curve cuts of one well (see the module docstring)."""
-    used: set[int] = set()
+def combine_evidence(tops_cuts: list[FaultCut], curve_cuts: list[FaultCut], *,
+                     apart=frozenset()) -> list[FaultCut]:
+    """Merge tops and curve cuts of one well (see the module docstring).
+
+    ``apart``: indices of tops cuts never merged with a curve cut (the caller found that the
+    curves' net jump in their bracket disagrees with the tops', :func:`wellfault.evidence.detect
+    .analyse_well`); they are returned as they are."""
+    used: set[int] = set(apart)
     out: list[FaultCut] = []
     for c in curve_cuts:
         match = None
@@ -537,5 +544,5 @@ def combine_evidence(tops_cuts: list[FaultCut], curve_cuts: list[FaultCut]) -> l
             c, method="both", confidence=conf, notes=c.notes + "; " + note,
             expected_thickness_m=t.expected_thickness_m,
             observed_thickness_m=t.observed_thickness_m))
-    out += [t for k, t in enumerate(tops_cuts) if k not in used]
+    out += [t for k, t in enumerate(tops_cuts) if k not in used or k in apart]
     return sorted(out, key=lambda c: c.md_m)
