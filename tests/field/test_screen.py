@@ -73,6 +73,7 @@ def test_serial_run_finds_the_cuts(serial_result, small_field):
     for c in ("fault_id", "fault_fit", "x_top_m", "tvdss_base_m"):
         assert c in r.cuts.columns
     assert r.wells["cuts_found"].sum() == len(r.cuts)
+    assert (r.wells["candidates_withheld"] == 0).all()      # tops alone withhold nothing
     assert "F001" in set(r.faults["fault_id"])
 
 
@@ -482,6 +483,9 @@ def test_screening_with_curves_finds_every_demo_cut_on_the_sample():
                     & (cuts.md_top_m <= tr.md_m) & (tr.md_m <= cuts.md_base_m)]
         assert len(mine) == 1, tr.well
         assert mine.iloc[0].section == tr.section
+    # weak curve candidates are counted per well, not lost (detect lists them with reasons)
+    withheld = res.wells["candidates_withheld"]
+    assert withheld.dtype.kind == "i" and (withheld >= 0).all() and withheld.sum() >= 1
 
 
 def test_field_separation_narrows_the_prior_and_picks_the_wells_to_read_again():

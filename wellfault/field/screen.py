@@ -289,6 +289,7 @@ def screen_wells(
     checked_by = np.full(n, "", dtype=object)
     pick_ix: dict[int, np.ndarray] = {}  # one pass: column index of each pick
     cut_out: dict[int, dict] = {}
+    withheld = np.zeros(n, dtype=np.int64)   # candidate cuts withheld, per well
     timings: dict[str, float] = {}
 
     def absorb(o: dict) -> None:
@@ -311,6 +312,7 @@ def screen_wells(
             if o["p"] == "separation":
                 cut_out.pop(i, None)           # the second reading replaces the first
             checked_by[i] = o["by"]
+            withheld[i] = int(o.get("h", 0))
             if "ix" in o:
                 pick_ix[i] = np.asarray(o["ix"], dtype=np.int64)
             if o["c"]:
@@ -482,6 +484,7 @@ def screen_wells(
         well_rows.append({
             "well": t.well, "status": "failed" if failed else "ok", "checked_by": by,
             "cuts_found": 0 if failed else int(counts.get(i, 0)),
+            "candidates_withheld": 0 if failed else int(withheld[i]),
             "seconds": float(seconds[i]), "n_picks": int(n_picks[i]),
             "depth_unit": well_units[i],
             "thickness_source": "" if failed else ("neighbours" if "neighbours" in by

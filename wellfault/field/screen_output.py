@@ -25,8 +25,8 @@ ERROR_COLUMNS = ("well", "file", "error_type", "message")
 
 
 #: Columns of the well table.
-WELL_COLUMNS = ("well", "status", "checked_by", "cuts_found", "seconds", "n_picks",
-                "depth_unit", "thickness_source", "warnings")
+WELL_COLUMNS = ("well", "status", "checked_by", "cuts_found", "candidates_withheld", "seconds",
+                "n_picks", "depth_unit", "thickness_source", "warnings")
 
 
 #: Files written into ``out_dir`` (``.csv`` or ``.parquet``).

@@ -227,16 +227,18 @@ def _header_well(inp: _Inputs):
 
 
 def _detect(cfg: _Config, inp: _Inputs, expected, tol, planes, precheck=True
-            ) -> list[FaultCut]:
-    """Cuts of one well (metres). With curve settings (``cfg.curves``) the well's curves are
-    aligned too (the alignment engine, through ``detect.analyse_well(curves=...)``).
+            ) -> tuple[list[FaultCut], int]:
+    """Cuts of one well (metres) and the number of candidate cuts withheld (weak candidates
+    of the curve evidence, :attr:`~wellfault.evidence.detect.WellAnalysis.withheld`; tops
+    evidence alone withholds none). With curve settings (``cfg.curves``) the well's curves
+    are aligned too (the alignment engine, through ``detect.analyse_well(curves=...)``).
 
     ``precheck``: first test whether tops evidence certainly finds nothing (skipped when the
     main process already knows the well has something to show)."""
     if precheck and cfg.curves is None:
         idx, _md, drilled, _mid = _pick_geometry(cfg, inp)
         if _clean_by_tops(cfg, idx, drilled, expected, tol):
-            return []
+            return [], 0
     planes = tuple(cfg.planes) + tuple(planes)
     if cfg.curves is None:
         # tops evidence alone: what detect.analyse_well does for tops, without building the
@@ -248,13 +250,13 @@ def _detect(cfg: _Config, inp: _Inputs, expected, tol, planes, precheck=True
         return find_cuts_from_tops(inp.picks.frame(), cfg.column, inp.trajectory,
                                    bed_dip=inp.bed_dip, well=None,
                                    assumptions=FaultAssumptions(planes=planes), tolerance=tol,
-                                   expected=expected)
+                                   expected=expected), 0
     from ..evidence.detect import analyse_well
 
-    return list(analyse_well(_header_well(inp), cfg.column, tops=inp.picks.frame(),
-                             trajectory=inp.trajectory, bed_dip=inp.bed_dip, tolerance=tol,
-                             planes=planes, expected=expected, curves=cfg.curves,
-                             unit="m").records)
+    res = analyse_well(_header_well(inp), cfg.column, tops=inp.picks.frame(),
+                       trajectory=inp.trajectory, bed_dip=inp.bed_dip, tolerance=tol,
+                       planes=planes, expected=expected, curves=cfg.curves, unit="m")
+    return list(res.records), len(res.withheld)
 
 
 #: The note tops evidence ends its own notes with (wellfault.evidence.topcuts.find_cuts_from_tops).
@@ -360,7 +362,7 @@ def _run_one(cfg: _Config, kind: str, task: WellTask, extra) -> dict:
                 if kind == "separation":      # the field's plausible separation (pass 2b)
                     cfg = dataclasses.replace(cfg, curves=extra[5])
                 if cuts is None:
-                    cuts = _detect(cfg, inp, expected, tol, planes, precheck)
+                    cuts, out["h"] = _detect(cfg, inp, expected, tol, planes, precheck)
                 out["c"] = [_cut_dict(c) for c in cuts]
                 out["b"] = _brackets(inp, cuts)
                 out["by"] = by
