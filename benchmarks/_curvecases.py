@@ -93,7 +93,7 @@ def run_case(case, methods=("engine",), settings=None):
         det["character"] = [c.extra.get("character", np.nan) for c in res.cuts]
         det["delta_s_m"] = [c.delta_s_m for c in res.cuts]
         # flagged in its row as beyond the plausible separation in force (given or derived)
-        det["beyond"] = ["is beyond the plausible separation" in c.notes for c in res.cuts]
+        det["beyond"] = [bool(c.extra.get("beyond_plausible", False)) for c in res.cuts]
         for t in (rows, det):
             if len(t):
                 t["case"], t["log"], t["seed"], t["kind"] = label, src, seed, sc.kind

@@ -522,12 +522,12 @@ def combine_evidence(tops_cuts: list[FaultCut], curve_cuts: list[FaultCut], *,
     ``apart``: indices of tops cuts never merged with a curve cut (the caller found that the
     curves' net jump in their bracket disagrees with the tops', :func:`wellfault.evidence.detect
     .analyse_well`); they are returned as they are."""
-    used: set[int] = set(apart)
+    used: set[int] = set()
     out: list[FaultCut] = []
     for c in curve_cuts:
         match = None
         for k, t in enumerate(tops_cuts):
-            if k in used or not _same_sense(t, c):
+            if k in used or k in apart or not _same_sense(t, c):
                 continue
             if t.md_top_m <= c.md_m <= t.md_base_m:
                 match = k
@@ -544,5 +544,5 @@ def combine_evidence(tops_cuts: list[FaultCut], curve_cuts: list[FaultCut], *,
             c, method="both", confidence=conf, notes=c.notes + "; " + note,
             expected_thickness_m=t.expected_thickness_m,
             observed_thickness_m=t.observed_thickness_m))
-    out += [t for k, t in enumerate(tops_cuts) if k not in used or k in apart]
+    out += [t for k, t in enumerate(tops_cuts) if k not in used]
     return sorted(out, key=lambda c: c.md_m)

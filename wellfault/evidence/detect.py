@@ -174,14 +174,12 @@ def analyse_well(
                                     assumptions=assumptions, picks=picks)
         cuts = _note_mispicks(cuts, res.mispicks, well)
         notes = [n for _, _, n in res.mispicks]
-        checks = None
+        checks, apart = None, set()
         if picks is not None:
             checks = _IntervalChecks.of(tops_intervals(
                 picks.sort_values("md_m", kind="stable"), column, trajectory, bed_dip,
                 expected=expected), tolerance, res.cuts)
             cuts, apart = checks.tops_kept_apart(cuts)
-        else:
-            apart = set()
         cuts = combine_evidence(cuts, res.cuts, apart=apart)
         cuts, withheld = _unconfirmed_tops(cuts, res)
         if checks is not None:
@@ -247,6 +245,7 @@ class _IntervalChecks:
     seen: np.ndarray
     net: np.ndarray
     tol: np.ndarray
+    n_curve: np.ndarray      # curve cuts per interval
     names: tuple
 
     @classmethod
@@ -257,12 +256,12 @@ class _IntervalChecks:
         md = np.array([c.md_m for c in curve_cuts], dtype=float)
         ds = np.array([c.delta_s_m for c in curve_cuts], dtype=float)
         inside = (top[:, None] < md[None, :]) & (md[None, :] <= base[:, None])
-        net = (inside * ds[None, :]).sum(axis=1) if md.size else np.zeros(top.size)
-        summed = (inside * np.abs(ds)[None, :]).sum(axis=1) if md.size else np.zeros(top.size)
-        tol = tolerance.allowed(intervals["spread_m"].to_numpy(float)) + _CURVE_DS_ERROR * summed
+        tol = (tolerance.allowed(intervals["spread_m"].to_numpy(float))
+               + _CURVE_DS_ERROR * (inside * np.abs(ds)).sum(axis=1))
         names = tuple(zip(intervals["surface_above"].astype(str),
                           intervals["surface_below"].astype(str)))
-        return cls(top, base, intervals["delta_s_m"].to_numpy(float), net, tol, names)
+        return cls(top, base, intervals["delta_s_m"].to_numpy(float),
+                   (inside * ds).sum(axis=1), tol, inside.sum(axis=1), names)
 
     def disagreeing(self, md_m: float) -> int | None:
         """The interval holding ``md_m`` when tops and curves disagree there, else None."""
@@ -282,7 +281,7 @@ class _IntervalChecks:
         out, apart = [], set()
         for i, t in enumerate(tops_cuts):
             k = self.disagreeing(t.md_m)
-            if t.method == "tops" and k is not None and self.net[k] != 0.0:
+            if t.method == "tops" and k is not None and self.n_curve[k]:
                 apart.add(i)
                 t = dataclasses.replace(t, notes=t.notes + (
                     f"; placed by the tops alone: {self._why(k)}"))
